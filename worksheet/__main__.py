@@ -1,0 +1,5 @@
+"""Run the command line: ``python -m worksheet``."""
+
+from worksheet.cli import main
+
+raise SystemExit(main())

@@ -1,0 +1,204 @@
+"""A whole sheet's statements in reading order: names, dependencies, incremental re-runs."""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import sympy
+
+from worksheet.engine.bindings import Binding
+from worksheet.engine.budget import statement_timer
+from worksheet.engine.context import Context
+from worksheet.engine.results import StatementResult
+from worksheet.engine.statements import KINDS, StatementEvaluator
+from worksheet.errors import NameResolutionError, WorksheetError
+from worksheet.syntax import parse_statement
+from worksheet.syntax import tree as t
+from worksheet.syntax.names import referenced_names
+
+
+@dataclass(frozen=True)
+class SourceStatement:
+    """One statement's text (continuation lines joined by newlines) and where it starts."""
+
+    line: int
+    text: str
+    cell: int = 0
+
+
+def split_statements(body: str, first_line: int, cell: int = 0) -> list[SourceStatement]:
+    """Statements of a calc cell: one a line, continued while parentheses are open.
+
+    >>> [s.line for s in split_statements("a = (1 +\\n 2)\\nb = 3\\n", 10)]
+    [10, 12]
+    """
+    statements: list[SourceStatement] = []
+    pending: list[str] = []
+    start = first_line
+    depth = 0
+    for offset, raw in enumerate(body.splitlines()):
+        if not pending:
+            start = first_line + offset
+        pending.append(raw)
+        depth += _paren_balance(raw)
+        if depth <= 0:
+            statements.append(SourceStatement(start, "\n".join(pending), cell))
+            pending, depth = [], 0
+    if pending:
+        statements.append(SourceStatement(start, "\n".join(pending), cell))
+    return statements
+
+
+def _serial(binding: Binding | None) -> int:
+    return -1 if binding is None else binding.serial
+
+
+def _paren_balance(line: str) -> int:
+    balance = 0
+    in_unit = False
+    for char in line:
+        if char == "#" and not in_unit:
+            break
+        if char == "[":
+            in_unit = True
+        elif char == "]":
+            in_unit = False
+        elif not in_unit and char == "(":
+            balance += 1
+        elif not in_unit and char == ")":
+            balance -= 1
+    return balance
+
+
+@dataclass
+class _Slot:
+    source: SourceStatement
+    parsed: t.AnyStatement | WorksheetError
+    defines: str | None
+    uses: frozenset[str]
+    key: tuple | None = None
+    result: StatementResult | None = None
+    binding: Binding | None = None
+
+
+class SheetEvaluator:
+    """Evaluates a list of statements; re-evaluates only what a change can affect.
+
+    Call :meth:`run` with the full statement list whenever it changes. Unchanged statements
+    whose inputs are unchanged keep their results (by identity of the bindings they read),
+    so editing one given recomputes only its dependents.
+    """
+
+    def __init__(self, context: Context):
+        self.ctx = context
+        self._slots: list[_Slot] = []
+        self._parse_cache: dict[tuple[int, str], tuple] = {}
+
+    def _parse(self, source: SourceStatement) -> tuple:
+        key = (source.line, source.text)
+        cached = self._parse_cache.get(key)
+        if cached is None:
+            try:
+                parsed: t.AnyStatement | WorksheetError = parse_statement(source.text, source.line)
+            except WorksheetError as err:
+                parsed = err
+            if isinstance(parsed, WorksheetError):
+                cached = (parsed, None, frozenset())
+            else:
+                defines = getattr(parsed, "name", None) if isinstance(
+                    parsed, t.Definition | t.Relation | t.Declaration) else None
+                cached = (parsed, defines, frozenset(referenced_names(parsed)))
+            self._parse_cache[key] = cached
+        return cached
+
+    def run(self, statements: Sequence[SourceStatement]) -> list[StatementResult]:
+        """Evaluate all statements (reusing what is unchanged) and return their results."""
+        old = {(slot.source.line, slot.source.text): slot for slot in self._slots}
+        slots: list[_Slot] = []
+        for source in statements:
+            parsed, defines, uses = self._parse(source)
+            previous = old.get((source.line, source.text))
+            slot = _Slot(source, parsed, defines, uses)
+            if previous is not None:
+                slot.key, slot.result, slot.binding = previous.key, previous.result, previous.binding
+            slots.append(slot)
+        self._slots = slots
+        if len(self._parse_cache) > 4 * len(slots) + 1000:
+            self._parse_cache = {(s.source.line, s.source.text): self._parse(s.source) for s in slots}
+
+        first_definer: dict[str, int] = {}
+        for index, slot in enumerate(slots):
+            if slot.defines is not None and slot.defines not in first_definer:
+                first_definer[slot.defines] = index
+
+        visible: dict[str, Binding] = {}
+        failed: dict[str, int] = {}  # name -> line of the failed definition
+        values: dict[sympy.Symbol, float] = {}
+        constants = self.ctx.constants
+
+        def lookup(name: str) -> Binding | None:
+            binding = visible.get(name)
+            if binding is not None:
+                return binding
+            return constants.get(name)
+
+        evaluator = StatementEvaluator(self.ctx, lookup, values)
+        for index, slot in enumerate(slots):
+            result, binding = self._evaluate_slot(index, slot, slots, first_definer, visible,
+                                                  failed, lookup, evaluator)
+            slot.result, slot.binding = result, binding
+            if slot.defines is not None:
+                if binding is not None and first_definer.get(slot.defines) == index:
+                    visible[slot.defines] = binding
+                    if binding.value is not None:
+                        values[binding.symbol] = binding.value
+                elif first_definer.get(slot.defines) == index:
+                    failed[slot.defines] = slot.source.line
+        return [slot.result for slot in slots if slot.result is not None]
+
+    def _evaluate_slot(self, index: int, slot: _Slot, slots: list[_Slot],
+                       first_definer: dict[str, int], visible: dict[str, Binding],
+                       failed: dict[str, int], lookup, evaluator: StatementEvaluator
+                       ) -> tuple[StatementResult, Binding | None]:
+        parsed = slot.parsed
+        line = slot.source.line
+        if isinstance(parsed, WorksheetError):
+            message = WorksheetError(parsed.message, parsed.line or line, parsed.column).located()
+            return StatementResult(line, "error", slot.source.text.strip(), "error",
+                                   message=message, record=message), None
+        key = (tuple((name, _serial(visible.get(name)), name in failed) for name in sorted(slot.uses)),
+               self.ctx.digits)
+        if slot.key == key and slot.result is not None:
+            return slot.result, slot.binding
+        slot.key = key
+        # Names: redefinition, use before definition, dependence on a failed line.
+        if slot.defines is not None and first_definer.get(slot.defines, index) != index:
+            first_line = slots[first_definer[slot.defines]].source.line
+            err = NameResolutionError(
+                f"'{slot.defines}' is already defined on line {first_line}; "
+                f"line {line} defines it again (pick a new name)", line)
+            return evaluator.error_result(parsed, err), None
+        for name in sorted(slot.uses):
+            definer = first_definer.get(name)
+            if definer is not None and definer > index:
+                err = NameResolutionError(
+                    f"'{name}' is used before its definition on line "
+                    f"{slots[definer].source.line}; move this line below it", line)
+                return evaluator.error_result(parsed, err), None
+            if name in failed and name not in visible:
+                message = f"line {line}: depends on line {failed[name]}, which failed"
+                return StatementResult(line, KINDS[type(parsed)], parsed.source, "skipped",
+                                       name=getattr(parsed, "name", None), message=message,
+                                       record=message), None
+        with statement_timer(self.ctx.seconds * 2):
+            try:
+                return evaluator.evaluate(parsed)
+            except WorksheetError as err:  # budget from the timer
+                return evaluator.error_result(parsed, err), None
+
+    @property
+    def bindings(self) -> dict[str, Binding]:
+        """Every name the last run defined, in reading order."""
+        return {slot.defines: slot.binding for slot in self._slots
+                if slot.defines is not None and slot.binding is not None}

@@ -1,0 +1,410 @@
+"""Evaluating one statement against the names defined above it."""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass
+from fractions import Fraction
+
+import sympy
+
+from worksheet.engine import symbolic_ops as ops
+from worksheet.engine.bindings import Binding, Origin, symbol_for, unit_symbol
+from worksheet.engine.context import Context
+from worksheet.engine.formatting import format_expr, format_number, format_uncertainty
+from worksheet.engine.numeric import MissingValue, evaluate
+from worksheet.engine.results import StatementResult
+from worksheet.engine.translate import Translator, Typed, describe
+from worksheet.errors import (
+    DimensionError,
+    EvaluationError,
+    NameResolutionError,
+    WorksheetError,
+)
+from worksheet.syntax import tree as t
+from worksheet.syntax.unparse import to_text
+from worksheet.units.dimension import Dimension, compose_base_units
+from worksheet.units.registry import ResolvedUnit
+
+KINDS = {
+    t.Definition: "definition",
+    t.Relation: "relation",
+    t.Declaration: "declaration",
+    t.Display: "display",
+    t.Check: "check",
+    t.Scaling: "scaling",
+    t.Table: "table",
+    t.Estimate: "estimate",
+    t.Blank: "blank",
+}
+DEFAULT_NUMERIC_TOLERANCE = Fraction(1, 10**9)
+
+
+@dataclass(frozen=True)
+class Quantity:
+    """A translated expression with its SI number (None when symbolic)."""
+
+    typed: Typed
+    si: float | None
+    lone_unit: ResolvedUnit | None = None  # set for '25 [degC]' or '3 [km]' written alone
+
+
+class StatementEvaluator:
+    """Evaluates statements for one sheet (or one ``calc``) with a shared context.
+
+    Args:
+        context: dataset, registry, digits and budget.
+        lookup: the binding visible for a name at the statement being evaluated.
+        values: SI numbers of every sheet symbol that has one (kept up to date by the caller).
+    """
+
+    def __init__(self, context: Context, lookup: Callable[[str], Binding | None],
+                 values: Mapping[sympy.Symbol, float]):
+        self.ctx = context
+        self.lookup = lookup
+        self.values = values
+
+    # --- public ---
+    def evaluate(self, stmt: t.AnyStatement) -> tuple[StatementResult, Binding | None]:
+        kind = KINDS[type(stmt)]
+        try:
+            if isinstance(stmt, t.Definition):
+                return self._definition(stmt)
+            if isinstance(stmt, t.Relation):
+                return self._relation(stmt)
+            if isinstance(stmt, t.Declaration):
+                return self._declaration(stmt)
+            if isinstance(stmt, t.Display):
+                return self._display(stmt), None
+            if isinstance(stmt, t.Check):
+                return self._check(stmt), None
+            if isinstance(stmt, t.Blank):
+                return StatementResult(stmt.line, kind, "", "ok"), None
+            raise EvaluationError(f"'{kind}' statements are not available yet", stmt.line,
+                                  stmt.column)
+        except WorksheetError as err:
+            return self.error_result(stmt, err), None
+        except RecursionError:
+            err = EvaluationError("the expression is too deeply nested to process", stmt.line)
+            return self.error_result(stmt, err), None
+
+    def error_result(self, stmt: t.AnyStatement, err: WorksheetError) -> StatementResult:
+        line = err.line if err.line is not None else stmt.line
+        located = WorksheetError(err.message, line, err.column).located()
+        name = getattr(stmt, "name", None)
+        return StatementResult(
+            stmt.line, KINDS[type(stmt)], stmt.source, "error", name=name, message=located,
+            record=located,
+        )
+
+    # --- pieces ---
+    def translator(self) -> Translator:
+        return Translator(self.lookup, self.ctx.registry, self.ctx.unit_values, self.ctx.worker,
+                          self.ctx.seconds)
+
+    def _all_values(self) -> dict[sympy.Symbol, float]:
+        values = self.ctx.value_map()
+        values.update(self.values)
+        return values
+
+    def quantity(self, tr: Translator, node: t.Expr) -> Quantity:
+        """Translate and, where every name has a value, compute the SI number."""
+        lone = _lone_unit_value(node)
+        if lone is not None:
+            number, unit_node = lone
+            resolved = self.ctx.registry.resolve(unit_node.unit, unit_node.line, unit_node.column)
+            if resolved.is_offset:
+                si = resolved.factor * float(number) + resolved.offset
+                kelvin = Fraction(si).limit_denominator(10**12)
+                expr = sympy.Rational(kelvin.numerator, kelvin.denominator) * unit_symbol("K")
+                self.ctx.unit_values[unit_symbol("K")] = 1.0
+                return Quantity(Typed(expr, resolved.dimension), si, resolved)
+            typed = tr.translate(node)
+            return Quantity(typed, self._number(typed.expr), resolved)
+        typed = tr.translate(node)
+        return Quantity(typed, self._number(typed.expr))
+
+    def _number(self, expr: sympy.Expr) -> float | None:
+        try:
+            value = evaluate(expr, self._all_values())
+        except MissingValue:
+            return None
+        except ZeroDivisionError as err:
+            raise EvaluationError("division by zero") from err
+        if isinstance(value, complex):
+            raise EvaluationError("the result is not a real number")
+        value = float(value)
+        if math.isinf(value):
+            raise EvaluationError("the number overflows double precision (above 1.8e308)")
+        if math.isnan(value):
+            raise EvaluationError("the result is not a number (an undefined operation)")
+        return value
+
+    def output_unit(self, quantity: Quantity, conversion: t.Conversion | None,
+                    at: t.Statement) -> tuple[str, float, float]:
+        """(unit text, SI factor, offset) for recording a quantity."""
+        dim = quantity.typed.dim
+        if conversion is not None:
+            if conversion.natural:
+                raise EvaluationError("natural-unit views are not available yet",
+                                      conversion.line, conversion.column)
+            target = self.ctx.registry.resolve(conversion.unit, conversion.line,
+                                               conversion.column + 3)
+            if target.dimension != dim:
+                raise DimensionError(
+                    f"cannot express {dim.name()} ({dim.si_unit() or '1'}) in "
+                    f"[{conversion.unit.source}], which is {target.dimension.name()} "
+                    f"({target.dimension.si_unit() or '1'})",
+                    conversion.line,
+                    conversion.column,
+                )
+            return conversion.unit.source, target.factor, target.offset
+        if quantity.lone_unit is not None:
+            unit = quantity.lone_unit
+            return unit.source, unit.factor, unit.offset
+        return dim.si_unit(), 1.0, 0.0
+
+    def _value_text(self, si: float, unit: str, factor: float, offset: float) -> tuple[str, float]:
+        shown = (si - offset) / factor
+        text = format_number(shown, self.ctx.digits)
+        return (f"{text} {unit}" if unit else text), shown
+
+    # --- statements ---
+    def _definition(self, stmt: t.Definition) -> tuple[StatementResult, Binding | None]:
+        self._refuse_constant_name(stmt.name, stmt)
+        tr = self.translator()
+        quantity = self.quantity(tr, stmt.expr)
+        typed = quantity.typed
+        deps = tuple(dict.fromkeys(tr.used))
+        origin = Origin.DERIVED if deps else Origin.GIVEN
+        unit, factor, offset = self.output_unit(quantity, stmt.conversion, stmt)
+        uncertainty = self._uncertainty(stmt, quantity, tr)
+        symbol = symbol_for(stmt.name, quantity.si,
+                            positive_hint=None if quantity.si is not None else
+                            bool(typed.expr.is_positive))
+        binding = Binding(
+            name=stmt.name, origin=origin, symbol=symbol, dimension=typed.dim, line=stmt.line,
+            local=typed.expr, deps=deps, value=quantity.si, uncertainty=uncertainty,
+            _resolver=self.lookup,
+        )
+        if origin is Origin.GIVEN:
+            binding.local = None
+        result = self._quantity_result(stmt, "definition", stmt.name, binding, quantity,
+                                       (unit, factor, offset), tr.used_verb)
+        return result, binding
+
+    def _quantity_result(self, stmt: t.Statement, kind: str, name: str | None,
+                         binding: Binding | None, quantity: Quantity,
+                         unit_info: tuple[str, float, float], verb: bool) -> StatementResult:
+        unit, factor, offset = unit_info
+        typed = quantity.typed
+        head = name if name is not None else to_text(stmt.expr)  # type: ignore[attr-defined]
+        form = binding.form() if binding is not None else typed.expr
+        symbolic = format_expr(form)
+        dim = typed.dim
+        if quantity.si is None:
+            record = f"{head} = {symbolic}"
+            return StatementResult(
+                stmt.line, kind, stmt.source, "ok", name=name, dimension=dim.name(),
+                symbolic=symbolic, si_unit=compose_base_units(dim.exponents), record=record,
+                unit=unit or None,
+            )
+        value_text, shown = self._value_text(quantity.si, unit, factor, offset)
+        uncertainty = binding.uncertainty if binding is not None else None
+        shown_u = None
+        if uncertainty:
+            shown_u = uncertainty / factor
+            number, _, unit_part = value_text.partition(" ")
+            value_text = f"{number} +- {format_uncertainty(shown_u)}" + (
+                f" {unit_part}" if unit_part else "")
+        record = f"{head} = {symbolic} = {value_text}" if verb else f"{head} = {value_text}"
+        return StatementResult(
+            stmt.line, kind, stmt.source, "ok", name=name, value=shown, unit=unit or "",
+            si_value=quantity.si, si_unit=compose_base_units(dim.exponents),
+            dimension=dim.name(), symbolic=symbolic, uncertainty=shown_u, record=record,
+        )
+
+    def _uncertainty(self, stmt: t.Definition, quantity: Quantity, tr: Translator) -> float | None:
+        if stmt.uncertainty is None:
+            return None
+        if quantity.si is None:
+            raise EvaluationError("an uncertainty needs a value to attach to", stmt.line)
+        if stmt.uncertainty.relative is not None:
+            return abs(quantity.si) * float(stmt.uncertainty.relative)
+        assert stmt.uncertainty.absolute is not None
+        spread = self.quantity(tr, stmt.uncertainty.absolute)
+        if spread.typed.dim != quantity.typed.dim:
+            raise DimensionError(
+                f"the uncertainty {describe(stmt.uncertainty.absolute, spread.typed)} does not "
+                f"match the value ({quantity.typed.dim.name()})",
+                stmt.uncertainty.absolute.line,
+                stmt.uncertainty.absolute.column,
+            )
+        if spread.si is None:
+            raise EvaluationError("an uncertainty must be a number", stmt.line)
+        return abs(spread.si)
+
+    def _refuse_constant_name(self, name: str, stmt: t.Statement) -> None:
+        existing = self.lookup(name)
+        if name == "pi" or (existing is not None and existing.origin is Origin.CONSTANT):
+            raise NameResolutionError(
+                f"'{name}' is a constant of the pinned dataset; pick another name, or declare "
+                f"it ({name} : [unit]) to keep it symbolic",
+                stmt.line,
+                stmt.column,
+            )
+
+    def _relation(self, stmt: t.Relation) -> tuple[StatementResult, Binding | None]:
+        self._refuse_constant_name(stmt.name, stmt)
+        names = {node.id for node in t.walk(stmt.expr) if isinstance(node, t.Name)}
+        deps = tuple(sorted(n for n in names - set(stmt.params) if self.lookup(n) is not None))
+        # Show the body with parameters as plain symbols; check it where it is dimension-free
+        # of the parameters (their dimensions come from each call).
+        shown_locals = {p: Typed(sympy.Symbol(p), Dimension()) for p in stmt.params}
+        tr = self.translator()
+        try:
+            body = tr.translate(stmt.expr, shown_locals)
+            symbolic = format_expr(body.expr)
+        except DimensionError:
+            symbolic = to_text(stmt.expr)
+        binding = Binding(
+            name=stmt.name, origin=Origin.RELATION, symbol=sympy.Symbol(stmt.name),
+            dimension=Dimension(), line=stmt.line, deps=deps, params=stmt.params, body=stmt.expr,
+        )
+        head = f"{stmt.name}({', '.join(stmt.params)})"
+        return StatementResult(
+            stmt.line, "relation", stmt.source, "ok", name=stmt.name, symbolic=symbolic,
+            record=f"{head} = {symbolic}",
+        ), binding
+
+    def _declaration(self, stmt: t.Declaration) -> tuple[StatementResult, Binding | None]:
+        existing = self.lookup(stmt.name)
+        unit = self.ctx.registry.resolve(stmt.unit, stmt.line, stmt.column)
+        if unit.is_offset:
+            raise DimensionError("declare temperatures in [K]", stmt.line, stmt.column)
+        if existing is not None and existing.origin is Origin.CONSTANT:
+            if existing.dimension != unit.dimension:
+                raise DimensionError(
+                    f"'{stmt.name}' is a constant of {existing.dimension.name()} "
+                    f"({existing.dimension.si_unit()}); it cannot be declared as "
+                    f"{unit.dimension.name()}",
+                    stmt.line,
+                    stmt.column,
+                )
+        binding = Binding(
+            name=stmt.name, origin=Origin.DECLARED,
+            symbol=sympy.Symbol(stmt.name, positive=True), dimension=unit.dimension,
+            line=stmt.line,
+        )
+        return StatementResult(
+            stmt.line, "declaration", stmt.source, "ok", name=stmt.name,
+            dimension=unit.dimension.name(), unit=stmt.unit.source,
+            si_unit=compose_base_units(unit.dimension.exponents), symbolic=stmt.name,
+        ), binding
+
+    def _display(self, stmt: t.Display) -> StatementResult:
+        tr = self.translator()
+        quantity = self.quantity(tr, stmt.expr)
+        unit_info = self.output_unit(quantity, stmt.conversion, stmt)
+        return self._quantity_result(stmt, "display", None, None, quantity, unit_info,
+                                     tr.used_verb)
+
+    def _check(self, stmt: t.Check) -> StatementResult:
+        tr = self.translator()
+        left = self.quantity(tr, stmt.left)
+        right = self.quantity(tr, stmt.right)
+        if left.typed.dim != right.typed.dim and not (left.si == 0 or right.si == 0):
+            raise DimensionError(
+                f"cannot compare {describe(stmt.left, left.typed)} with "
+                f"{describe(stmt.right, right.typed)}",
+                stmt.left.line,
+                stmt.left.column,
+            )
+        if left.si is not None and right.si is not None:
+            holds, detail = self._numeric_claim(stmt, left.si, right.si, tr, left)
+        else:
+            holds, detail = self._symbolic_claim(stmt, left, right, tr)
+        status = "ok" if holds else "failed"
+        word = "holds" if holds else "fails"
+        record = f"{stmt.source}: {word}" + (f" ({detail})" if detail and not holds else "")
+        return StatementResult(
+            stmt.line, "check", stmt.source, status, dimension=left.typed.dim.name(),
+            message=None if holds else detail, record=record,
+        )
+
+    def _numeric_claim(self, stmt: t.Check, a: float, b: float, tr: Translator,
+                       left: Quantity) -> tuple[bool, str]:
+        unit = left.typed.dim.si_unit()
+        digits = self.ctx.digits
+
+        def show(x: float) -> str:
+            return format_number(x, max(digits, 6)) + (f" {unit}" if unit else "")
+
+        detail = f"left {show(a)}, right {show(b)}"
+        op = stmt.op
+        if op == "==":
+            if stmt.absolute_tolerance is not None:
+                bound = self.quantity(tr, stmt.absolute_tolerance)
+                if bound.typed.dim != left.typed.dim or bound.si is None:
+                    raise DimensionError(
+                        f"the tolerance {describe(stmt.absolute_tolerance, bound.typed)} must "
+                        f"have the dimension of the sides ({left.typed.dim.name()})",
+                        stmt.absolute_tolerance.line,
+                        stmt.absolute_tolerance.column,
+                    )
+                return abs(a - b) <= abs(bound.si), detail
+            tolerance = float(stmt.tolerance if stmt.tolerance is not None
+                              else DEFAULT_NUMERIC_TOLERANCE)
+            scale = max(abs(a), abs(b))
+            difference = abs(a - b)
+            relative = difference / scale if scale else 0.0
+            return difference <= tolerance * scale, f"{detail}, relative difference " \
+                f"{format_number(relative, 2)}"
+        if op == "~":
+            if a <= 0 or b <= 0:
+                if a == b:
+                    return True, detail
+                raise EvaluationError("'~' compares orders of magnitude of positive values",
+                                      stmt.line)
+            spread = abs(math.log10(a / b))
+            return spread <= 0.5, f"{detail}, {spread:.2f} decades apart"
+        compare = {"<": a < b, "<=": a <= b, ">": a > b, ">=": a >= b}
+        return compare[op], detail
+
+    def _symbolic_claim(self, stmt: t.Check, left: Quantity, right: Quantity,
+                        tr: Translator) -> tuple[bool, str]:
+        # Compare forms in givens, so derived names are seen through.
+        expanded = self.translator()
+        lhs = expanded.translate(stmt.left, expand=True).expr
+        rhs = expanded.translate(stmt.right, expand=True).expr
+        difference = sympy.expand(lhs - rhs)
+        if stmt.op == "==":
+            if stmt.tolerance is not None or stmt.absolute_tolerance is not None:
+                raise EvaluationError("'within' needs numbers on both sides", stmt.line)
+            zero = difference == 0 or tr.run(ops.is_zero, (lhs - rhs,), "check", stmt.left)
+            return bool(zero), f"{format_expr(lhs)} differs from {format_expr(rhs)}"
+        if stmt.op == "~":
+            raise EvaluationError("'~' needs numbers on both sides", stmt.line)
+        sign = {"<": (-difference).is_positive, "<=": (-difference).is_nonnegative,
+                ">": difference.is_positive, ">=": difference.is_nonnegative}[stmt.op]
+        if sign is None:
+            raise EvaluationError(
+                f"cannot decide {format_expr(lhs)} {stmt.op} {format_expr(rhs)} symbolically; "
+                "give the names values",
+                stmt.line,
+            )
+        return bool(sign), f"{format_expr(lhs)} {stmt.op} {format_expr(rhs)} is false"
+
+
+def _lone_unit_value(node: t.Expr) -> tuple[Fraction, t.Unit] | None:
+    """``25 [degC]``, ``-3 [km]`` or ``[kg]``: a number written with its unit and nothing else."""
+    sign = 1
+    if isinstance(node, t.Neg):
+        sign, node = -1, node.operand
+    if isinstance(node, t.Unit):
+        return Fraction(sign), node
+    if (isinstance(node, t.BinOp) and node.op == "*" and isinstance(node.left, t.Number)
+            and isinstance(node.right, t.Unit)):
+        return node.left.value * sign, node.right
+    return None

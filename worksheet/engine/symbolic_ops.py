@@ -1,0 +1,98 @@
+"""The sympy work behind the derivation verbs, as plain functions a worker process can run."""
+
+from __future__ import annotations
+
+import sympy
+
+from worksheet.errors import EvaluationError
+
+
+def simplify(expr: sympy.Expr) -> sympy.Expr:
+    return sympy.simplify(expr)
+
+
+def expand(expr: sympy.Expr) -> sympy.Expr:
+    return sympy.expand(expr)
+
+
+def factor(expr: sympy.Expr) -> sympy.Expr:
+    return sympy.factor(expr)
+
+
+def differentiate(expr: sympy.Expr, variable: sympy.Symbol, order: int) -> sympy.Expr:
+    return sympy.diff(expr, variable, order)
+
+
+def integrate(
+    expr: sympy.Expr,
+    variable: sympy.Symbol,
+    lower: sympy.Expr | None = None,
+    upper: sympy.Expr | None = None,
+) -> sympy.Expr:
+    if lower is None:
+        result = sympy.integrate(expr, variable)
+    else:
+        result = sympy.integrate(expr, (variable, lower, upper))
+    if result.has(sympy.Integral):
+        raise EvaluationError(f"no closed form found for the integral of {expr}")
+    if isinstance(result, sympy.Piecewise):
+        # With positive symbols the convergent branch is the first; say so if it is not clear.
+        first, condition = result.args[0]
+        if condition is not sympy.true:
+            raise EvaluationError(f"the integral holds only when {condition}; declare signs")
+        result = first
+    return sympy.simplify(result)
+
+
+def solve(lhs: sympy.Expr, rhs: sympy.Expr, variable: sympy.Symbol) -> list[sympy.Expr]:
+    roots = sympy.solve(sympy.Eq(lhs, rhs), variable, dict=False)
+    return [sympy.simplify(root) for root in roots if root.is_real is not False]
+
+
+def series(expr: sympy.Expr, variable: sympy.Symbol, point: sympy.Expr, order: int) -> sympy.Expr:
+    return sympy.series(expr, variable, point, order).removeO()
+
+
+def limit(expr: sympy.Expr, variable: sympy.Symbol, point: sympy.Expr) -> sympy.Expr:
+    return sympy.limit(expr, variable, point)
+
+
+def substitute(expr: sympy.Expr, variable: sympy.Symbol, value: sympy.Expr) -> sympy.Expr:
+    return expr.subs(variable, value)
+
+
+def dsolve(
+    lhs: sympy.Expr,
+    rhs: sympy.Expr,
+    function: sympy.Expr,
+    variable: sympy.Symbol,
+    start: sympy.Expr,
+    initial: sympy.Expr,
+) -> sympy.Expr:
+    """Solve the ODE ``lhs == rhs`` for ``function`` (of ``variable``) with f(start) = initial."""
+    equation = sympy.Eq(lhs, rhs)
+    solutions = sympy.dsolve(equation, function, ics={function.subs(variable, start): initial})
+    if not isinstance(solutions, list):
+        solutions = [solutions]
+    candidates = []
+    for solution in solutions:
+        value = sympy.simplify(solution.rhs)
+        check = sympy.simplify(value.subs(variable, start) - initial)
+        if check == 0 and value.is_real is not False:
+            candidates.append(value)
+    if len(candidates) > 1:
+        real = [c for c in candidates if c.subs(variable, start).is_positive]
+        candidates = real or candidates
+    if len(candidates) != 1:
+        shown = ", ".join(str(c) for c in candidates) or "none"
+        raise EvaluationError(f"expected one real solution, found {len(candidates)}: {shown}")
+    return candidates[0]
+
+
+def is_zero(expr: sympy.Expr) -> bool | None:
+    """Whether an expression is identically zero (None when it cannot be decided)."""
+    simplified = sympy.simplify(expr)
+    if simplified == 0:
+        return True
+    decided = simplified.is_zero
+    return decided

@@ -1,0 +1,330 @@
+"""Expression tree -> sympy expression and its dimension, in one pass, before any number.
+
+Every operator checks dimensions as it builds: sums and comparisons need one dimension,
+functions such as ``exp`` need dimensionless arguments, exponents of dimensional bases must
+be exact numbers. Names resolve only through the sheet's bindings and the pinned dataset.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass, field
+import math
+from fractions import Fraction
+
+import sympy
+
+from worksheet.engine import symbolic_ops
+from worksheet.engine.bindings import Binding, Origin, unit_symbol
+from worksheet.engine.budget import Worker
+from worksheet.errors import (
+    BudgetError,
+    DimensionError,
+    EvaluationError,
+    NameResolutionError,
+    ParseError,
+)
+from worksheet.syntax import tree as t
+from worksheet.syntax.unparse import to_text
+from worksheet.units.dimension import Dimension
+from worksheet.units.registry import UnitRegistry
+
+MAX_EXACT_DIGITS = 5000
+"""An exact integer power with more digits than this is refused (9^9^9^9 and friends)."""
+
+MAX_DIMENSION_POWER = 1000
+
+FUNCTIONS: dict[str, Callable[..., sympy.Expr]] = {
+    "exp": sympy.exp,
+    "log": sympy.log,
+    "ln": sympy.log,
+    "log10": lambda x: sympy.log(x, 10),
+    "sin": sympy.sin,
+    "cos": sympy.cos,
+    "tan": sympy.tan,
+    "asin": sympy.asin,
+    "acos": sympy.acos,
+    "atan": sympy.atan,
+    "sinh": sympy.sinh,
+    "cosh": sympy.cosh,
+    "tanh": sympy.tanh,
+}
+VERBS = frozenset(
+    {"diff", "integrate", "solve", "simplify", "expand", "factor", "series", "limit", "dsolve",
+     "subs"}
+)
+OTHER_CALLS = frozenset({"sqrt", "abs", "min", "max"})
+BUILTIN_CALLS = frozenset(FUNCTIONS) | VERBS | OTHER_CALLS
+
+
+@dataclass(frozen=True)
+class Typed:
+    expr: sympy.Expr
+    dim: Dimension
+
+
+def describe(node: t.Expr, typed: Typed) -> str:
+    """``length (2*G*M/c^2, m)``: what a message says about one operand."""
+    unit = typed.dim.si_unit() or "1"
+    return f"{typed.dim.name()} ({to_text(node)}, {unit})"
+
+
+@dataclass
+class Translator:
+    """Builds one statement's expression. Collects the sheet names and units it used.
+
+    Args:
+        lookup: the binding a name has at this point of the sheet (None when unknown).
+        registry: resolves bracketed units.
+        unit_values: shared map from unit symbols to their SI factors (filled as we go).
+        worker: the process that runs symbolic verbs under the budget.
+        seconds: the budget for each verb.
+    """
+
+    lookup: Callable[[str], Binding | None]
+    registry: UnitRegistry
+    unit_values: dict[sympy.Symbol, float]
+    worker: Worker
+    seconds: float
+    used: list[str] = field(default_factory=list)
+    used_verb: bool = False
+
+    # --- entry point ---
+    def translate(self, node: t.Expr, local: dict[str, Typed] | None = None, expand: bool = False) -> Typed:
+        return self._node(node, local or {}, expand)
+
+    def _node(self, node: t.Expr, local: dict[str, Typed], expand: bool) -> Typed:
+        if isinstance(node, t.Number):
+            return Typed(sympy.Rational(node.value.numerator, node.value.denominator), Dimension())
+        if isinstance(node, t.Name):
+            return self._name(node, local, expand)
+        if isinstance(node, t.Unit):
+            return self._unit(node)
+        if isinstance(node, t.Neg):
+            inner = self._node(node.operand, local, expand)
+            return Typed(-inner.expr, inner.dim)
+        if isinstance(node, t.BinOp):
+            return self._binop(node, local, expand)
+        if isinstance(node, t.Power):
+            return self._power(node, local, expand)
+        if isinstance(node, t.Call):
+            return self._call(node, local, expand)
+        if isinstance(node, t.Equation):
+            raise ParseError("'==' belongs in 'check' or inside solve(...)", node.line, node.column)
+        raise EvaluationError(f"unknown expression node {type(node).__name__}")
+
+    # --- leaves ---
+    def _name(self, node: t.Name, local: dict[str, Typed], expand: bool) -> Typed:
+        if node.id in local:
+            return local[node.id]
+        if node.id == "pi":
+            return Typed(sympy.pi, Dimension())
+        binding = self.lookup(node.id)
+        if binding is None:
+            raise self._unknown(node)
+        if binding.origin is Origin.RELATION:
+            raise NameResolutionError(
+                f"'{node.id}' is a relation; call it with arguments, {node.id}(...)",
+                node.line,
+                node.column,
+            )
+        if binding.origin is not Origin.CONSTANT:
+            self.used.append(node.id)
+        expr = binding.form() if expand else binding.symbol
+        return Typed(expr, binding.dimension)
+
+    def _unknown(self, node: t.Name) -> NameResolutionError:
+        hint = ""
+        try:
+            self.registry.named(node.id)
+            hint = f"; for the unit, write it in brackets: [{node.id}]"
+        except (ParseError, DimensionError):
+            hint = ""
+        return NameResolutionError(f"unknown name '{node.id}'{hint}", node.line, node.column)
+
+    def _unit(self, node: t.Unit) -> Typed:
+        resolved = self.registry.resolve(node.unit, node.line, node.column)
+        if resolved.is_offset:
+            raise DimensionError(
+                f"offset temperature [{node.unit.source}] is allowed only as a lone value "
+                f"(T = 25 [{node.unit.source}]) or in a conversion (in [{node.unit.source}]), "
+                f"not in a product; use [K] or [delta_{node.unit.source}]",
+                node.line,
+                node.column,
+            )
+        symbol = unit_symbol(node.unit.source)
+        self.unit_values[symbol] = resolved.factor
+        return Typed(symbol, resolved.dimension)
+
+    # --- operators ---
+    def _binop(self, node: t.BinOp, local: dict[str, Typed], expand: bool) -> Typed:
+        left = self._node(node.left, local, expand)
+        right = self._node(node.right, local, expand)
+        if node.op in "+-":
+            if left.dim != right.dim and not (_is_zero(left) or _is_zero(right)):
+                verb = "add" if node.op == "+" else "subtract"
+                raise DimensionError(
+                    f"cannot {verb} {describe(node.left, left)} and {describe(node.right, right)}",
+                    node.line,
+                    node.column,
+                )
+            dim = right.dim if _is_zero(left) else left.dim
+            expr = left.expr + right.expr if node.op == "+" else left.expr - right.expr
+            return Typed(expr, dim)
+        if node.op == "*":
+            return Typed(left.expr * right.expr, left.dim * right.dim)
+        if right.expr == 0:
+            raise EvaluationError("division by zero", node.line, node.column)
+        return Typed(left.expr / right.expr, left.dim / right.dim)
+
+    def _power(self, node: t.Power, local: dict[str, Typed], expand: bool) -> Typed:
+        base = self._node(node.base, local, expand)
+        exponent = self._node(node.exponent, local, expand)
+        if not exponent.dim.dimensionless:
+            raise DimensionError(
+                f"an exponent must be dimensionless, not {describe(node.exponent, exponent)}",
+                node.exponent.line,
+                node.exponent.column,
+            )
+        if base.dim.dimensionless:
+            dim = Dimension()
+        else:
+            if not exponent.expr.is_Rational:
+                raise DimensionError(
+                    f"{describe(node.base, base)} can only be raised to an exact number, "
+                    f"not to {to_text(node.exponent)}",
+                    node.line,
+                    node.column,
+                )
+            power = Fraction(int(exponent.expr.p), int(exponent.expr.q))
+            if abs(power) > MAX_DIMENSION_POWER:
+                raise BudgetError(f"the power {power} is too large", node.line, node.column)
+            dim = base.dim**power
+        _guard_exact_power(base.expr, exponent.expr, node)
+        return Typed(sympy.Pow(base.expr, exponent.expr), dim)
+
+    # --- calls ---
+    def _call(self, node: t.Call, local: dict[str, Typed], expand: bool) -> Typed:
+        name = node.func
+        if name in FUNCTIONS:
+            (arg,) = self._args(node, 1, 1)
+            typed = self._node(arg, local, expand)
+            if not typed.dim.dimensionless:
+                raise DimensionError(
+                    f"{name} needs a dimensionless argument, not {describe(arg, typed)}",
+                    arg.line,
+                    arg.column,
+                )
+            if name == "log10" and typed.expr.is_Rational:
+                return Typed(sympy.log(typed.expr, 10), Dimension())
+            return Typed(FUNCTIONS[name](typed.expr), Dimension())
+        if name == "sqrt":
+            (arg,) = self._args(node, 1, 1)
+            typed = self._node(arg, local, expand)
+            return Typed(sympy.sqrt(typed.expr), typed.dim ** Fraction(1, 2))
+        if name == "abs":
+            (arg,) = self._args(node, 1, 1)
+            typed = self._node(arg, local, expand)
+            return Typed(sympy.Abs(typed.expr), typed.dim)
+        if name in ("min", "max"):
+            args = self._args(node, 1, 64)
+            typed_args = [self._node(arg, local, expand) for arg in args]
+            for arg, typed in zip(args[1:], typed_args[1:], strict=True):
+                if typed.dim != typed_args[0].dim:
+                    raise DimensionError(
+                        f"{name} needs arguments of one dimension: "
+                        f"{describe(args[0], typed_args[0])} and {describe(arg, typed)}",
+                        arg.line,
+                        arg.column,
+                    )
+            function = sympy.Min if name == "min" else sympy.Max
+            return Typed(function(*[typed.expr for typed in typed_args]), typed_args[0].dim)
+        if name in VERBS:
+            self.used_verb = True
+            from worksheet.engine.verbs import translate_verb
+
+            return translate_verb(self, node, local)
+        if name in local:
+            raise NameResolutionError(f"'{name}' is not a relation", node.line, node.column)
+        binding = self.lookup(name)
+        if binding is None:
+            raise NameResolutionError(
+                f"unknown function '{name}'; the functions are "
+                + ", ".join(sorted(BUILTIN_CALLS)),
+                node.line,
+                node.column,
+            )
+        if binding.origin is not Origin.RELATION or binding.body is None:
+            raise NameResolutionError(f"'{name}' is not a relation", node.line, node.column)
+        return self._relation_call(node, binding, local, expand)
+
+    def _relation_call(self, node: t.Call, binding: Binding, local: dict[str, Typed], expand: bool) -> Typed:
+        params = binding.params
+        if len(node.args) != len(params):
+            raise NameResolutionError(
+                f"{binding.name} takes {len(params)} argument(s) ({', '.join(params)}), "
+                f"got {len(node.args)}",
+                node.line,
+                node.column,
+            )
+        self.used.append(binding.name)
+        inner: dict[str, Typed] = {}
+        for param, arg in zip(params, node.args, strict=True):
+            inner[param] = self._node(arg, local, expand)
+        assert binding.body is not None
+        try:
+            return self._node(binding.body, inner, expand)
+        except (DimensionError, NameResolutionError) as err:
+            raise type(err)(
+                f"in {binding.name}(...) defined on line {binding.line}: {err.message}",
+                node.line,
+                node.column,
+            ) from err
+
+    def _args(self, node: t.Call, least: int, most: int) -> tuple[t.Expr, ...]:
+        count = len(node.args)
+        if not least <= count <= most:
+            wanted = str(least) if least == most else f"{least} to {most}"
+            raise ParseError(
+                f"{node.func} takes {wanted} argument(s), got {count}", node.line, node.column
+            )
+        return node.args
+
+    # --- verbs run in the worker ---
+    def run(self, function: Callable[..., object], args: tuple[object, ...], what: str, node: t.Node) -> object:
+        try:
+            return self.worker.call(function, args, self.seconds, what)
+        except (BudgetError, EvaluationError) as err:
+            raise type(err)(err.message, node.line, node.column) from err
+
+
+def _is_zero(typed: Typed) -> bool:
+    return typed.expr == 0
+
+
+def _guard_exact_power(base: sympy.Expr, exponent: sympy.Expr, node: t.Power) -> None:
+    """Refuse exact powers whose result would be astronomically long, before sympy tries."""
+    if not (base.is_Number and exponent.is_Number):
+        if exponent.is_Integer and abs(int(exponent)) > 10**6:
+            raise BudgetError(
+                f"the exponent {exponent} is too large to expand symbolically", node.line, node.column
+            )
+        return
+    if base in (0, 1, -1) or not base.is_Rational:
+        return
+    if not exponent.is_Rational:
+        return
+    size = max(abs(int(base.p)), abs(int(base.q)))
+    magnitude = abs(exponent)
+    digits = float(min(magnitude, 10**9)) * math.log10(size)
+    if digits > MAX_EXACT_DIGITS:
+        raise BudgetError(
+            f"{base}^{exponent} would have about {int(digits)} digits; exact powers are limited "
+            f"to {MAX_EXACT_DIGITS} digits",
+            node.line,
+            node.column,
+        )
+
+
+# Used by symbolic verbs; kept here so tests can reach them through one module.
+__all__ = ["BUILTIN_CALLS", "FUNCTIONS", "VERBS", "Translator", "Typed", "symbolic_ops"]

@@ -1,0 +1,51 @@
+"""Which names a statement refers to, read off its tree (for the dependency graph)."""
+
+from __future__ import annotations
+
+from worksheet.syntax import tree as t
+
+
+def _expr_names(expr: t.Expr | None) -> set[str]:
+    if expr is None:
+        return set()
+    names: set[str] = set()
+    for node in t.walk(expr):
+        if isinstance(node, t.Name):
+            names.add(node.id)
+        elif isinstance(node, t.Call):
+            names.add(node.func)
+    return names
+
+
+def referenced_names(stmt: t.AnyStatement) -> set[str]:
+    """Names a statement may read (an over-estimate: verb variables are included).
+
+    >>> from worksheet.syntax import parse_statement
+    >>> sorted(referenced_names(parse_statement("T(m) = hbar/(m*c)")))
+    ['c', 'hbar']
+    """
+    if isinstance(stmt, t.Definition):
+        names = _expr_names(stmt.expr)
+        if stmt.uncertainty is not None:
+            names |= _expr_names(stmt.uncertainty.absolute)
+        return names
+    if isinstance(stmt, t.Relation):
+        return _expr_names(stmt.expr) - set(stmt.params)
+    if isinstance(stmt, t.Display):
+        return _expr_names(stmt.expr)
+    if isinstance(stmt, t.Check):
+        return _expr_names(stmt.left) | _expr_names(stmt.right) | _expr_names(
+            stmt.absolute_tolerance)
+    if isinstance(stmt, t.Scaling):
+        names = {stmt.target}
+        for name, expr in stmt.around:
+            names |= {name} | _expr_names(expr)
+        return names
+    if isinstance(stmt, t.Table):
+        names = {stmt.sweep.name} | {column for column, _ in stmt.columns}
+        for expr in stmt.sweep.values:
+            names |= _expr_names(expr)
+        return names
+    if isinstance(stmt, t.Estimate):
+        return set(stmt.inputs)
+    return set()

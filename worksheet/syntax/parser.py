@@ -1,0 +1,458 @@
+"""Recursive-descent parser: tokens of one statement -> a statement tree. Nothing is evaluated."""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+from worksheet.errors import ParseError
+from worksheet.syntax import tree as t
+from worksheet.syntax.tokens import Kind, Token, tokenize
+from worksheet.syntax.units import parse_unit
+
+MAX_NESTING = 60
+"""Parentheses, calls and unary signs nested deeper than this are refused."""
+
+MAX_DECIMAL_EXPONENT = 400
+"""Literals like ``1e999999`` would build huge exact integers; refuse them."""
+
+RESERVED = frozenset({"check", "in", "within"})
+COMPARISONS = ("==", "<=", ">=", "<", ">", "~")
+
+
+class _Parser:
+    def __init__(self, tokens: list[Token]):
+        self.tokens = tokens
+        self.index = 0
+        self.depth = 0
+
+    # --- token helpers ---
+    def peek(self, offset: int = 0) -> Token:
+        return self.tokens[min(self.index + offset, len(self.tokens) - 1)]
+
+    def take(self) -> Token:
+        token = self.tokens[self.index]
+        if token.kind is not Kind.END:
+            self.index += 1
+        return token
+
+    def at(self, text: str, kind: Kind = Kind.OP) -> bool:
+        token = self.peek()
+        return token.kind is kind and token.text == text
+
+    def at_word(self, word: str) -> bool:
+        return self.at(word, Kind.NAME)
+
+    def expect(self, text: str, kind: Kind = Kind.OP, what: str | None = None) -> Token:
+        if not self.at(text, kind):
+            raise self.error(f"expected {what or repr(text)}, found {self.peek().describe()}")
+        return self.take()
+
+    def expect_name(self, what: str = "a name") -> Token:
+        token = self.peek()
+        if token.kind is not Kind.NAME:
+            raise self.error(f"expected {what}, found {token.describe()}")
+        check_name(token)
+        return self.take()
+
+    def expect_unit(self, what: str = "a unit in brackets") -> tuple[t.UnitExpr, Token]:
+        token = self.peek()
+        if token.kind is not Kind.UNIT:
+            raise self.error(f"expected {what}, found {token.describe()}")
+        self.take()
+        return parse_unit(token.text, token.line, token.column + 1), token
+
+    def error(self, message: str, token: Token | None = None) -> ParseError:
+        token = token or self.peek()
+        return ParseError(message, token.line, token.column)
+
+    def expect_end(self) -> None:
+        token = self.peek()
+        if token.kind is not Kind.END:
+            hint = ""
+            if token.kind is Kind.UNIT:
+                hint = "; a unit in brackets goes right after a number or ')'"
+            elif token.kind is Kind.OP and token.text == "=":
+                hint = "; to compare, write 'check A == B'"
+            raise self.error(f"unexpected {token.describe()}{hint}")
+
+    # --- expressions ---
+    def enter(self) -> None:
+        self.depth += 1
+        if self.depth > MAX_NESTING:
+            raise self.error(f"expression nested more than {MAX_NESTING} levels deep")
+
+    def expression(self) -> t.Expr:
+        self.enter()
+        try:
+            node = self.term()
+            while self.peek().kind is Kind.OP and self.peek().text in ("+", "-"):
+                op = self.take()
+                right = self.term()
+                node = t.BinOp(op.text, node, right, line=op.line, column=op.column)
+            return node
+        finally:
+            self.depth -= 1
+
+    def term(self) -> t.Expr:
+        node = self.unary()
+        while self.peek().kind is Kind.OP and self.peek().text in ("*", "/"):
+            op = self.take()
+            right = self.unary()
+            node = t.BinOp(op.text, node, right, line=op.line, column=op.column)
+        return node
+
+    def unary(self) -> t.Expr:
+        if self.peek().kind is Kind.OP and self.peek().text in ("+", "-"):
+            op = self.take()
+            self.enter()
+            try:
+                operand = self.unary()
+            finally:
+                self.depth -= 1
+            if op.text == "+":
+                return operand
+            return t.Neg(operand, line=op.line, column=op.column)
+        return self.power()
+
+    def power(self) -> t.Expr:
+        base = self.postfix()
+        if self.at("^"):
+            if isinstance(base, t.Unit):
+                raise self.error(
+                    f"unit powers go inside the brackets: write [{base.unit.source}^2]"
+                )
+            op = self.take()
+            self.enter()
+            try:
+                exponent = self.unary()  # right-associative, allows 2^-1
+            finally:
+                self.depth -= 1
+            return t.Power(base, exponent, line=op.line, column=op.column)
+        return base
+
+    def postfix(self) -> t.Expr:
+        """A primary, with a unit bound to it when one follows a number or ')'."""
+        start = self.peek()
+        node = self.primary()
+        if self.peek().kind is Kind.UNIT:
+            closes = self.tokens[self.index - 1].text == ")" if self.index else False
+            if not (isinstance(node, t.Number) or closes):
+                raise self.error(
+                    f"a unit in brackets goes right after a number or ')'; write "
+                    f"{start.text}*[{self.peek().text}] to multiply"
+                )
+            unit_token = self.peek()
+            unit, _ = self.expect_unit()
+            unit_node = t.Unit(unit, line=unit_token.line, column=unit_token.column)
+            node = t.BinOp("*", node, unit_node, line=unit_token.line, column=unit_token.column)
+            if self.at("^"):
+                raise self.error(
+                    f"unit powers go inside the brackets: write [({unit.source})^2] "
+                    f"or ({start.text} [{unit.source}])^2"
+                    if not unit.source.isidentifier()
+                    else f"unit powers go inside the brackets: write [{unit.source}^2]"
+                )
+        return node
+
+    def primary(self) -> t.Expr:
+        token = self.peek()
+        if token.kind is Kind.NUMBER:
+            self.take()
+            return number_node(token)
+        if token.kind is Kind.UNIT:
+            unit, _ = self.expect_unit()
+            return t.Unit(unit, line=token.line, column=token.column)
+        if token.kind is Kind.NAME:
+            check_name(token)
+            self.take()
+            if self.at("("):
+                return self.call(token)
+            return t.Name(token.text, line=token.line, column=token.column)
+        if self.at("("):
+            self.take()
+            self.enter()
+            try:
+                inner = self.expression()
+            finally:
+                self.depth -= 1
+            self.expect(")", what="')'")
+            return inner
+        if token.kind is Kind.END:
+            raise self.error("the expression ends too early")
+        raise self.error(f"unexpected {token.describe()}")
+
+    def call(self, name: Token) -> t.Call:
+        self.expect("(")
+        self.enter()
+        try:
+            args: list[t.Expr] = []
+            if not self.at(")"):
+                while True:
+                    args.append(self.argument())
+                    if self.at(","):
+                        self.take()
+                        continue
+                    break
+            self.expect(")", what="',' or ')'")
+        finally:
+            self.depth -= 1
+        return t.Call(name.text, tuple(args), line=name.line, column=name.column)
+
+    def argument(self) -> t.Expr:
+        left = self.expression()
+        if self.at("=="):
+            op = self.take()
+            right = self.expression()
+            return t.Equation(left, right, line=op.line, column=op.column)
+        return left
+
+    # --- statement pieces ---
+    def conversion(self) -> t.Conversion | None:
+        if not self.at_word("in"):
+            return None
+        word = self.take()
+        natural = False
+        if self.at_word("natural"):
+            self.take()
+            natural = True
+        unit, _ = self.expect_unit("a unit in brackets after 'in'")
+        return t.Conversion(unit, natural, word.line, word.column)
+
+    def uncertainty(self) -> t.Uncertainty | None:
+        if not self.at("+-"):
+            return None
+        self.take()
+        if self.peek().kind is Kind.NUMBER and self.peek(1).kind is Kind.PERCENT:
+            value = number_node(self.take()).value
+            self.take()
+            return t.Uncertainty(value / 100, None)
+        return t.Uncertainty(None, self.expression())
+
+
+def number_node(token: Token) -> t.Number:
+    literal = token.text
+    mantissa, _, exponent = literal.lower().partition("e")
+    if exponent and abs(int(exponent)) > MAX_DECIMAL_EXPONENT:
+        raise ParseError(
+            f"number {literal} is out of range (decimal exponents up to {MAX_DECIMAL_EXPONENT})",
+            token.line,
+            token.column,
+        )
+    if len(mantissa.replace(".", "")) > 60:
+        raise ParseError(f"number {literal[:20]}... has too many digits", token.line, token.column)
+    return t.Number(Fraction(literal), literal, line=token.line, column=token.column)
+
+
+def check_name(token: Token) -> None:
+    if token.text.startswith("_"):
+        raise ParseError(
+            f"names starting with '_' are refused ('{token.text}')", token.line, token.column
+        )
+    if token.text in RESERVED:
+        raise ParseError(f"'{token.text}' is a keyword, not a name", token.line, token.column)
+
+
+def _source_text(text: str) -> str:
+    """The statement without its comment, with continuation lines joined."""
+    lines = []
+    for raw in text.split("\n"):
+        head = raw.split("#", 1)[0]
+        lines.append(head.strip())
+    return " ".join(part for part in lines if part)
+
+
+def parse_statement(text: str, line: int = 1, column: int = 1) -> t.AnyStatement:
+    """Parse one statement (possibly spanning continuation lines).
+
+    >>> parse_statement("r_s = 2*G*M/c^2").name
+    'r_s'
+    """
+    tokens = tokenize(text, line, column)
+    source = _source_text(text)
+    first = tokens[0]
+    parser = _Parser(tokens)
+    if first.kind is Kind.END:
+        return t.Blank(line, column, "")
+    pos = (first.line, first.column, source)
+    if first.kind is Kind.NAME and first.text == "check":
+        return _parse_check(parser, pos)
+    if first.kind is Kind.NAME and parser.peek(1).kind is Kind.NAME:
+        keyword = {"scaling": _parse_scaling, "table": _parse_table}.get(first.text)
+        if keyword:
+            return keyword(parser, pos)
+    if first.kind is Kind.NAME and first.text == "estimate" and parser.peek(1).kind is Kind.NAME:
+        return _parse_estimate(parser, pos)
+    if first.kind is Kind.NAME:
+        second = parser.peek(1)
+        if second.kind is Kind.OP and second.text == "=":
+            check_name(first)
+            parser.index = 2
+            expr = parser.expression()
+            uncertainty = parser.uncertainty()
+            conversion = parser.conversion()
+            if uncertainty is None:
+                uncertainty = parser.uncertainty()
+            parser.expect_end()
+            return t.Definition(*pos, first.text, expr, conversion, uncertainty)
+        if second.kind is Kind.OP and second.text == ":":
+            check_name(first)
+            parser.index = 2
+            unit, _ = parser.expect_unit("a unit in brackets after ':' (a declaration)")
+            parser.expect_end()
+            return t.Declaration(*pos, first.text, unit)
+        if second.kind is Kind.OP and second.text == "(" and _is_relation_head(tokens):
+            check_name(first)
+            parser.index = 2
+            params: list[str] = []
+            while True:
+                params.append(parser.expect_name("a parameter name").text)
+                if parser.at(","):
+                    parser.take()
+                    continue
+                break
+            parser.expect(")")
+            parser.expect("=")
+            if len(set(params)) != len(params):
+                raise ParseError(f"a parameter of {first.text} is named twice", *pos[:2])
+            expr = parser.expression()
+            parser.expect_end()
+            return t.Relation(*pos, first.text, tuple(params), expr)
+    expr = parser.expression()
+    conversion = parser.conversion()
+    parser.expect_end()
+    return t.Display(*pos, expr, conversion)
+
+
+def _is_relation_head(tokens: list[Token]) -> bool:
+    """``NAME ( NAME , ... ) =``: a relation rather than a call being displayed."""
+    i = 2
+    while i < len(tokens) and tokens[i].kind is Kind.NAME:
+        i += 1
+        if tokens[i].text == ",":
+            i += 1
+            continue
+        break
+    return (
+        i + 1 < len(tokens)
+        and tokens[i].text == ")"
+        and tokens[i + 1].kind is Kind.OP
+        and tokens[i + 1].text == "="
+    )
+
+
+def _parse_check(parser: _Parser, pos: tuple[int, int, str]) -> t.Check:
+    parser.take()
+    left = parser.expression()
+    token = parser.peek()
+    if not (token.kind is Kind.OP and token.text in COMPARISONS):
+        raise parser.error(
+            f"expected a comparison (==, <, <=, >, >=, ~), found {token.describe()}"
+        )
+    op = parser.take().text
+    right = parser.expression()
+    tolerance: Fraction | None = None
+    absolute: t.Expr | None = None
+    if parser.at_word("within"):
+        word = parser.take()
+        if op != "==":
+            raise parser.error("'within' goes with '==' only", word)
+        if parser.peek().kind is Kind.NUMBER and parser.peek(1).kind is Kind.PERCENT:
+            tolerance = number_node(parser.take()).value / 100
+            parser.take()
+        else:
+            bound = parser.expression()
+            if isinstance(bound, t.Number):
+                tolerance = bound.value
+            else:
+                absolute = bound
+    parser.expect_end()
+    return t.Check(*pos, op, left, right, tolerance, absolute)
+
+
+def _parse_scaling(parser: _Parser, pos: tuple[int, int, str]) -> t.Scaling:
+    parser.take()
+    target = parser.expect_name("the quantity to scale").text
+    unit = None
+    if parser.at_word("in"):
+        parser.take()
+        unit, _ = parser.expect_unit()
+    if not parser.at_word("around"):
+        raise parser.error(f"expected 'around', found {parser.peek().describe()}")
+    parser.take()
+    around: list[tuple[str, t.Expr]] = []
+    while True:
+        name = parser.expect_name("an input name").text
+        parser.expect("=")
+        around.append((name, parser.expression()))
+        if parser.at(","):
+            parser.take()
+            continue
+        break
+    parser.expect_end()
+    return t.Scaling(*pos, target, unit, tuple(around))
+
+
+def _parse_table(parser: _Parser, pos: tuple[int, int, str]) -> t.Table:
+    parser.take()
+    name = parser.expect_name("the swept input").text
+    parser.expect("=")
+    first = parser.expression()
+    values = [first]
+    spacing: str | None = None
+    count = 0
+    if parser.at(".."):
+        parser.take()
+        values.append(parser.expression())
+        word = parser.peek()
+        if not (word.kind is Kind.NAME and word.text in ("log", "lin")):
+            raise parser.error("expected 'log N' or 'lin N' after the range")
+        spacing = parser.take().text
+        count_token = parser.peek()
+        if count_token.kind is not Kind.NUMBER or not count_token.text.isdigit():
+            raise parser.error("expected a whole number of rows")
+        count = int(parser.take().text)
+        if not 2 <= count <= 10000:
+            raise parser.error("a table has from 2 to 10000 rows", count_token)
+    else:
+        while parser.at(","):
+            parser.take()
+            values.append(parser.expression())
+        count = len(values)
+    parser.expect(":", what="':' before the columns")
+    columns: list[tuple[str, t.UnitExpr | None]] = []
+    while True:
+        column = parser.expect_name("a quantity to tabulate").text
+        unit = None
+        if parser.at_word("in"):
+            parser.take()
+            unit, _ = parser.expect_unit()
+        columns.append((column, unit))
+        if parser.at(","):
+            parser.take()
+            continue
+        break
+    parser.expect_end()
+    return t.Table(*pos, t.Sweep(name, tuple(values), spacing, count), tuple(columns))
+
+
+def _parse_estimate(parser: _Parser, pos: tuple[int, int, str]) -> t.Estimate:
+    parser.take()
+    name = parser.expect_name("the name of the estimate").text
+    unit, _ = parser.expect_unit("the target unit in brackets")
+    if not parser.at_word("from"):
+        raise parser.error(f"expected 'from', found {parser.peek().describe()}")
+    parser.take()
+    inputs = [parser.expect_name("an input quantity").text]
+    while parser.at(","):
+        parser.take()
+        inputs.append(parser.expect_name("an input quantity").text)
+    parser.expect_end()
+    return t.Estimate(*pos, name, unit, tuple(inputs))
+
+
+def parse_expression(text: str, line: int = 1, column: int = 1) -> t.Expr:
+    """Parse a lone expression (as given to ``worksheet calc``)."""
+    parser = _Parser(tokenize(text, line, column))
+    expr = parser.expression()
+    parser.expect_end()
+    return expr

@@ -1,0 +1,174 @@
+"""Tokenizer for the statement language: text in, positioned tokens out (no evaluation)."""
+
+from __future__ import annotations
+
+import unicodedata
+from dataclasses import dataclass
+from enum import Enum
+
+from worksheet.errors import ParseError
+
+MAX_STATEMENT_LENGTH = 4000
+"""Characters in one statement: longer input is refused before any work is done."""
+
+
+class Kind(Enum):
+    NUMBER = "number"
+    NAME = "name"
+    UNIT = "unit"  # a bracketed unit, text without the brackets
+    OP = "operator"
+    PERCENT = "percent"
+    END = "end of statement"
+
+
+@dataclass(frozen=True)
+class Token:
+    kind: Kind
+    text: str
+    line: int
+    column: int
+
+    def describe(self) -> str:
+        if self.kind is Kind.END:
+            return "the end of the statement"
+        if self.kind is Kind.UNIT:
+            return f"unit [{self.text}]"
+        return f"'{self.text}'"
+
+
+# Longest first so that '**' wins over '*', '<=' over '<', '+-' over '+'.
+_OPERATORS = (
+    "**", "==", "<=", ">=", "+-", "..",
+    "+", "-", "*", "/", "^", "(", ")", ",", "=", "<", ">", "~", ":", "±",
+)
+_ALIASES = {"π": "pi", "ħ": "hbar", "×": "*", "·": "*", "−": "-", "²": "^2", "³": "^3"}
+
+
+def _is_name_start(char: str) -> bool:
+    return char == "_" or unicodedata.category(char).startswith("L")
+
+
+def _is_name_part(char: str) -> bool:
+    return _is_name_start(char) or char.isdigit()
+
+
+def _scan_number(text: str, start: int) -> int:
+    """Index just past a decimal literal beginning at ``start``."""
+    i = start
+    n = len(text)
+    while i < n and text[i].isdigit():
+        i += 1
+    if i < n and text[i] == "." and not text.startswith("..", i):
+        i += 1
+        while i < n and text[i].isdigit():
+            i += 1
+    if i < n and text[i] in "eE":
+        j = i + 1
+        if j < n and text[j] in "+-":
+            j += 1
+        if j < n and text[j].isdigit():
+            while j < n and text[j].isdigit():
+                j += 1
+            i = j
+    return i
+
+
+def tokenize(text: str, line: int = 1, column: int = 1) -> list[Token]:
+    """Split one statement into tokens; ``#`` starts a comment.
+
+    ``line``/``column`` give the position of ``text[0]`` in the file. Newlines inside the
+    text (continuation lines) advance the line count.
+
+    >>> [t.text for t in tokenize("M = 5e11 [kg]  # mass")]
+    ['M', '=', '5e11', 'kg', '']
+    """
+    if len(text) > MAX_STATEMENT_LENGTH:
+        raise ParseError(
+            f"statement is {len(text)} characters long; the limit is {MAX_STATEMENT_LENGTH}",
+            line,
+            column,
+        )
+    tokens: list[Token] = []
+    i = 0
+    n = len(text)
+    cur_line, line_start = line, -column + 1  # column of text[i] is i - line_start + 1
+
+    def col(index: int) -> int:
+        return index - line_start + 1
+
+    while i < n:
+        char = text[i]
+        if char == "\n":
+            cur_line += 1
+            line_start = i + 1
+            i += 1
+            continue
+        if char in " \t\r":
+            i += 1
+            continue
+        if char == "#":
+            while i < n and text[i] != "\n":
+                i += 1
+            continue
+        if char in _ALIASES:
+            alias = _ALIASES[char]
+            if alias[0] == "^":
+                tokens.append(Token(Kind.OP, "^", cur_line, col(i)))
+                tokens.append(Token(Kind.NUMBER, alias[1:], cur_line, col(i)))
+            else:
+                kind = Kind.NAME if alias[0].isalpha() else Kind.OP
+                tokens.append(Token(kind, alias, cur_line, col(i)))
+            i += 1
+            continue
+        if char.isdigit() or (char == "." and i + 1 < n and text[i + 1].isdigit()):
+            end = _scan_number(text, i)
+            if end < n and _is_name_start(text[end]):
+                raise ParseError(
+                    f"a number runs into a name ('{text[i:end + 1]}'); put '*' between them, "
+                    "or brackets around a unit",
+                    cur_line,
+                    col(i),
+                )
+            tokens.append(Token(Kind.NUMBER, text[i:end], cur_line, col(i)))
+            i = end
+            continue
+        if _is_name_start(char):
+            end = i
+            while end < n and _is_name_part(text[end]):
+                end += 1
+            tokens.append(Token(Kind.NAME, text[i:end], cur_line, col(i)))
+            i = end
+            continue
+        if char == "[":
+            end = text.find("]", i + 1)
+            newline = text.find("\n", i + 1)
+            if end == -1 or (newline != -1 and newline < end):
+                raise ParseError("'[' opens a unit that is never closed with ']'", cur_line, col(i))
+            inner = text[i + 1 : end]
+            if "[" in inner:
+                raise ParseError("units cannot be nested inside brackets", cur_line, col(i))
+            tokens.append(Token(Kind.UNIT, inner.strip(), cur_line, col(i)))
+            i = end + 1
+            continue
+        if char == "]":
+            raise ParseError("']' without a matching '['", cur_line, col(i))
+        if char == "%":
+            tokens.append(Token(Kind.PERCENT, "%", cur_line, col(i)))
+            i += 1
+            continue
+        for op in _OPERATORS:
+            if text.startswith(op, i):
+                canonical = {"**": "^", "±": "+-"}.get(op, op)
+                tokens.append(Token(Kind.OP, canonical, cur_line, col(i)))
+                i += len(op)
+                break
+        else:
+            shown = char if char.isprintable() else repr(char)
+            hint = ""
+            if char in "'\"":
+                hint = " (the sheet language has no strings)"
+            elif char in ".@{};!&|$`\\":
+                hint = " (the sheet language has no attribute access, code or statements of that kind)"
+            raise ParseError(f"unexpected character {shown}{hint}", cur_line, col(i))
+    tokens.append(Token(Kind.END, "", cur_line, col(n)))
+    return tokens

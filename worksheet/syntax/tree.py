@@ -1,0 +1,192 @@
+"""The expression and statement tree the parser builds: plain frozen data with positions."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from fractions import Fraction
+
+
+@dataclass(frozen=True)
+class Node:
+    line: int = field(compare=False, kw_only=True)
+    column: int = field(compare=False, kw_only=True)
+    text: str = field(compare=False, kw_only=True, default="")
+    """The source text the node was parsed from (for messages)."""
+
+
+@dataclass(frozen=True)
+class Number(Node):
+    value: Fraction  # exact: '1.5e-3' is 3/2000
+    literal: str
+
+
+@dataclass(frozen=True)
+class Name(Node):
+    id: str
+
+
+@dataclass(frozen=True)
+class UnitExpr:
+    """A unit inside brackets: a product of named units to rational powers, times a factor."""
+
+    factors: tuple[tuple[str, Fraction], ...]  # (unit name, power), in written order
+    scale: Fraction = Fraction(1)
+    source: str = ""
+
+
+@dataclass(frozen=True)
+class Unit(Node):
+    unit: UnitExpr
+
+
+@dataclass(frozen=True)
+class BinOp(Node):
+    op: str  # '+', '-', '*', '/'
+    left: Expr
+    right: Expr
+
+
+@dataclass(frozen=True)
+class Neg(Node):
+    operand: Expr
+
+
+@dataclass(frozen=True)
+class Power(Node):
+    base: Expr
+    exponent: Expr
+
+
+@dataclass(frozen=True)
+class Call(Node):
+    func: str
+    args: tuple[Expr, ...]
+
+
+@dataclass(frozen=True)
+class Equation(Node):
+    """``L == R`` inside a call, as in ``solve(L == R, x)``."""
+
+    left: Expr
+    right: Expr
+
+
+Expr = Number | Name | Unit | BinOp | Neg | Power | Call | Equation
+
+
+# --- statements ---------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Conversion:
+    """``in [UNIT]`` or ``in natural [UNIT]`` after an expression."""
+
+    unit: UnitExpr
+    natural: bool
+    line: int
+    column: int
+
+
+@dataclass(frozen=True)
+class Uncertainty:
+    """``+- 20%`` (relative) or ``+- 1e11 [kg]`` (absolute)."""
+
+    relative: Fraction | None
+    absolute: Expr | None
+
+
+@dataclass(frozen=True)
+class Statement:
+    line: int
+    column: int
+    source: str  # the statement text without its comment, stripped
+
+
+@dataclass(frozen=True)
+class Definition(Statement):
+    name: str
+    expr: Expr
+    conversion: Conversion | None
+    uncertainty: Uncertainty | None
+
+
+@dataclass(frozen=True)
+class Relation(Statement):
+    name: str
+    params: tuple[str, ...]
+    expr: Expr
+
+
+@dataclass(frozen=True)
+class Declaration(Statement):
+    name: str
+    unit: UnitExpr
+
+
+@dataclass(frozen=True)
+class Display(Statement):
+    expr: Expr
+    conversion: Conversion | None
+
+
+@dataclass(frozen=True)
+class Check(Statement):
+    op: str  # '==', '<', '<=', '>', '>=', '~'
+    left: Expr
+    right: Expr
+    tolerance: Fraction | None  # relative, from 'within 2%' or 'within 1e-6'
+    absolute_tolerance: Expr | None  # from 'within 3 [m]'
+
+
+@dataclass(frozen=True)
+class Scaling(Statement):
+    target: str
+    unit: UnitExpr | None
+    around: tuple[tuple[str, Expr], ...]
+
+
+@dataclass(frozen=True)
+class Sweep:
+    name: str
+    values: tuple[Expr, ...]  # an explicit list, or the two ends of a range
+    spacing: str | None  # 'log', 'lin' or None for a list
+    count: int
+
+
+@dataclass(frozen=True)
+class Table(Statement):
+    sweep: Sweep
+    columns: tuple[tuple[str, UnitExpr | None], ...]
+
+
+@dataclass(frozen=True)
+class Estimate(Statement):
+    name: str
+    unit: UnitExpr
+    inputs: tuple[str, ...]
+
+
+@dataclass(frozen=True)
+class Blank(Statement):
+    """A comment-only or empty line: records nothing."""
+
+
+AnyStatement = (
+    Definition | Relation | Declaration | Display | Check | Scaling | Table | Estimate | Blank
+)
+
+
+def walk(node: Expr):
+    """Every node of an expression, parents before children."""
+    stack: list[Expr] = [node]
+    while stack:
+        current = stack.pop()
+        yield current
+        if isinstance(current, BinOp | Equation):
+            stack.extend((current.right, current.left))
+        elif isinstance(current, Neg):
+            stack.append(current.operand)
+        elif isinstance(current, Power):
+            stack.extend((current.exponent, current.base))
+        elif isinstance(current, Call):
+            stack.extend(reversed(current.args))

@@ -1,0 +1,145 @@
+"""The one unit registry of a process: pint's unit names plus the pinned astronomical units.
+
+Bracket text is parsed by our own grammar (``worksheet.syntax.units``); pint is asked only
+about single unit names, so hostile text never reaches its parser. The pint registry is
+built in-process on first use (no disk cache: pint's cache is pickle).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import TYPE_CHECKING, Any
+
+from worksheet.errors import DimensionError, ParseError
+from worksheet.syntax.tree import UnitExpr
+from worksheet.syntax.units import parse_unit
+from worksheet.units.dimension import PINT_BASES, Dimension
+
+if TYPE_CHECKING:
+    from worksheet.constants import Dataset
+
+@dataclass(frozen=True)
+class ResolvedUnit:
+    """What a bracketed unit means: SI factor, dimension and (for degC/degF) an offset."""
+
+    source: str
+    factor: float  # SI value of one of this unit
+    dimension: Dimension
+    offset: float = 0.0  # SI value = factor * x + offset (only for lone offset units)
+    origin: str = ""  # where the definition comes from, for the constants finder
+
+    @property
+    def is_offset(self) -> bool:
+        return self.offset != 0.0
+
+
+def _clean(value: float) -> float:
+    """Round off pint's float noise (1.0000000000000001e-07 for the erg) to 15 digits."""
+    if value == 0 or not math.isfinite(value):
+        return value
+    return float(f"{value:.15g}")
+
+
+class UnitRegistry:
+    """Resolves bracket text to SI factors and dimensions, for one constants dataset.
+
+    Args:
+        dataset: the pinned dataset whose astronomical units (M_sun, au, pc, ly, yr, Jy, ...)
+            take precedence over pint's own definitions of the same names.
+    """
+
+    def __init__(self, dataset: Dataset):
+        self.dataset = dataset
+        self._pint: Any = None
+        self._names: dict[str, ResolvedUnit] = {}
+        self._units: dict[str, ResolvedUnit] = {}
+
+    def _pint_registry(self) -> Any:
+        if self._pint is None:
+            import pint
+
+            self._pint = pint.UnitRegistry(cache_folder=None, autoconvert_offset_to_baseunit=False)
+        return self._pint
+
+    def named(self, name: str) -> ResolvedUnit:
+        """One unit name (``kg``, ``MeV``, ``M_sun``) resolved, or a ParseError saying why not."""
+        cached = self._names.get(name)
+        if cached is not None:
+            return cached
+        resolved = self._resolve_name(name)
+        self._names[name] = resolved
+        return resolved
+
+    def _resolve_name(self, name: str) -> ResolvedUnit:
+        astro = self.dataset.units.get(name)
+        if astro is not None:
+            base = self.resolve(parse_unit(astro.unit)) if astro.unit not in ("", "1") else None
+            dimension = base.dimension if base else Dimension()
+            return ResolvedUnit(name, astro.si_value, dimension, origin=astro.source)
+        ureg = self._pint_registry()
+        import pint
+
+        try:
+            unit = ureg.Unit(name)
+        except (pint.errors.UndefinedUnitError, AttributeError, ValueError, TypeError) as err:
+            raise ParseError(f"unknown unit '{name}'") from err
+        dims = dict(unit.dimensionality)
+        extra = set(dims) - set(PINT_BASES)
+        if extra:
+            raise ParseError(f"unit '{name}' has a dimension outside SI ({', '.join(sorted(extra))})")
+        exponents = tuple(Fraction(dims.get(base, 0)).limit_denominator(1000) for base in PINT_BASES)
+        if any(e.denominator != 1 for e in exponents):
+            raise ParseError(
+                f"unit '{name}' is a Gaussian-system unit with half-integer dimensions; "
+                "it has no exact SI conversion here, write the SI unit instead (e.g. [T] for [gauss])"
+            )
+        dimension = Dimension(exponents)
+        if not ureg.Quantity(1.0, unit)._ok_for_muldiv():
+            # Offset scales: SI kelvin = scale * x + offset.
+            offset = float(ureg.Quantity(0.0, unit).to_base_units().magnitude)
+            one = float(ureg.Quantity(1.0, unit).to_base_units().magnitude)
+            return ResolvedUnit(name, _clean(one - offset), dimension, _clean(offset), "pint")
+        factor = _clean(float(ureg.Quantity(1.0, unit).to_base_units().magnitude))
+        return ResolvedUnit(name, factor, dimension, origin="pint")
+
+    def resolve(self, unit: UnitExpr, line: int | None = None, column: int | None = None) -> ResolvedUnit:
+        """A whole bracket expression (``erg/s``) as one SI factor and dimension."""
+        cached = self._units.get(unit.source)
+        if cached is not None:
+            return cached
+        factor = float(unit.scale)
+        dimension = Dimension()
+        parts: list[ResolvedUnit] = []
+        for name, power in unit.factors:
+            try:
+                part = self.named(name)
+            except ParseError as err:
+                raise ParseError(err.message, line, column) from err
+            parts.append(part)
+            factor *= part.factor ** float(power)
+            dimension = dimension * part.dimension**power
+        offset_parts = [part for part in parts if part.is_offset]
+        if offset_parts:
+            only = len(unit.factors) == 1 and unit.factors[0][1] == 1 and unit.scale == 1
+            if not only:
+                raise DimensionError(
+                    f"offset temperature [{offset_parts[0].source}] cannot be part of a "
+                    f"compound unit [{unit.source}]; use [delta_{offset_parts[0].source}] "
+                    "for a temperature difference, or [K]",
+                    line,
+                    column,
+                )
+            resolved = parts[0]
+        else:
+            resolved = ResolvedUnit(unit.source, _clean(factor), dimension)
+        self._units[unit.source] = resolved
+        return resolved
+
+    def resolve_text(self, text: str) -> ResolvedUnit:
+        """Resolve ``kg``, ``[kg]`` or ``erg/s`` as typed on the command line."""
+        inner = text.strip()
+        if inner.startswith("[") and inner.endswith("]"):
+            inner = inner[1:-1]
+        return self.resolve(parse_unit(inner))
