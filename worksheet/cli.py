@@ -25,8 +25,11 @@ class UsageError(Exception):
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message: str) -> None:  # type: ignore[override]
-        raise UsageError(f"{message} (see 'worksheet {self.prog.split()[-1]} --help')"
-                         if " " in self.prog else f"{message} (see 'worksheet --help')")
+        raise UsageError(
+            f"{message} (see 'worksheet {self.prog.split()[-1]} --help')"
+            if " " in self.prog
+            else f"{message} (see 'worksheet --help')"
+        )
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -39,7 +42,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     p_open = sub.add_parser("open", help="open a sheet in the terminal app (new if missing)")
     p_open.add_argument("file")
-    p_open.add_argument("--theme", default=None, help="colour theme: dark, light, contrast or a file")
+    p_open.add_argument(
+        "--theme", default=None, help="colour theme: dark, light, contrast or a file"
+    )
 
     p_run = sub.add_parser("run", help="re-run a sheet and rewrite its result blocks")
     p_run.add_argument("file")
@@ -79,8 +84,12 @@ def main(argv: Sequence[str] | None = None) -> int:
             build_parser().print_help()
             return 2
         handler = {
-            "open": _open, "run": _run, "check": _check, "calc": _calc,
-            "constants": _constants, "export": _export,
+            "open": _open,
+            "run": _run,
+            "check": _check,
+            "calc": _calc,
+            "constants": _constants,
+            "export": _export,
         }[args.command]
         return handler(args)
     except UsageError as err:
@@ -99,8 +108,10 @@ def _read(path_text: str):
 
     path = Path(path_text)
     if not path.exists():
-        raise UsageError(f"{path_text}: no such file (check the path, or 'worksheet open' it "
-                         "to start a new sheet)")
+        raise UsageError(
+            f"{path_text}: no such file (check the path, or 'worksheet open' it "
+            "to start a new sheet)"
+        )
     if path.is_dir():
         raise UsageError(f"{path_text}: is a folder, not a sheet file")
     try:
@@ -162,8 +173,11 @@ def _check(args: argparse.Namespace) -> int:
             run = _run_document(path_text)
         except UsageError as err:
             if args.json:
-                print(json.dumps({"file": path_text, "ok": False, "error": str(err),
-                                  "statements": []}))
+                print(
+                    json.dumps(
+                        {"file": path_text, "ok": False, "error": str(err), "statements": []}
+                    )
+                )
             print(f"worksheet: {err}", file=sys.stderr)
             worst = 2
             continue
@@ -171,8 +185,11 @@ def _check(args: argparse.Namespace) -> int:
         ok = all(r.status == "ok" for r in marked if r.kind != "blank")
         if args.json:
             statements = [r.to_json() for r in marked if r.kind != "blank"]
-            print(json.dumps({"file": path_text, "ok": ok, "statements": statements},
-                             ensure_ascii=False))
+            print(
+                json.dumps(
+                    {"file": path_text, "ok": ok, "statements": statements}, ensure_ascii=False
+                )
+            )
         else:
             for warning in run.settings.warnings:
                 print(f"{path_text}: warning: {warning}")
@@ -193,8 +210,9 @@ def _calc(args: argparse.Namespace) -> int:
     from worksheet.engine.budget import DEFAULT_SECONDS
 
     if args.constants is not None and args.constants not in DATASET_NAMES:
-        raise UsageError(f"unknown dataset '{args.constants}'; use one of "
-                         + ", ".join(DATASET_NAMES))
+        raise UsageError(
+            f"unknown dataset '{args.constants}'; use one of " + ", ".join(DATASET_NAMES)
+        )
     if not 1 <= args.digits <= 15:
         raise UsageError("--digits must be from 1 to 15")
     context = make_context(args.constants, args.digits, args.budget or DEFAULT_SECONDS)
@@ -205,8 +223,11 @@ def _calc(args: argparse.Namespace) -> int:
     if args.json:
         print(json.dumps(result.to_json(), ensure_ascii=False))
     elif result.status == "ok":
-        print(result.record.split(" = ", 1)[1] if result.record and " = " in result.record
-              else result.record)
+        print(
+            result.record.split(" = ", 1)[1]
+            if result.record and " = " in result.record
+            else result.record
+        )
     else:
         print(f"error: {result.message}", file=sys.stderr)
     return 0 if result.status == "ok" else 1
@@ -239,8 +260,9 @@ def _constants(args: argparse.Namespace) -> int:
 
 def _open(args: argparse.Namespace) -> int:
     if not sys.stdin.isatty() and os.environ.get("WORKSHEET_ALLOW_NO_TTY") != "1":
-        raise UsageError("the app needs a terminal; use 'worksheet run' or 'worksheet check' "
-                         "in scripts")
+        raise UsageError(
+            "the app needs a terminal; use 'worksheet run' or 'worksheet check' in scripts"
+        )
     from worksheet.app import launch  # the UI is imported only here
 
     return launch(args.file, theme=args.theme)

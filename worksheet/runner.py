@@ -56,8 +56,9 @@ def read_settings(doc: SheetDocument) -> SheetSettings:
     try:
         digits = int(digits_text)
     except ValueError as err:
-        raise DocumentError(f"front matter 'digits: {digits_text}' is not a whole number",
-                            _key_line(doc, "digits")) from err
+        raise DocumentError(
+            f"front matter 'digits: {digits_text}' is not a whole number", _key_line(doc, "digits")
+        ) from err
     if not 1 <= digits <= 15:
         raise DocumentError("front matter 'digits' must be from 1 to 15", _key_line(doc, "digits"))
     budget_text = doc.get("budget")
@@ -66,11 +67,14 @@ def read_settings(doc: SheetDocument) -> SheetSettings:
         try:
             seconds = float(budget_text.removesuffix("s").strip())
         except ValueError as err:
-            raise DocumentError(f"front matter 'budget: {budget_text}' is not a number of seconds",
-                                _key_line(doc, "budget")) from err
+            raise DocumentError(
+                f"front matter 'budget: {budget_text}' is not a number of seconds",
+                _key_line(doc, "budget"),
+            ) from err
         if not 0.1 <= seconds <= 600:
-            raise DocumentError("front matter 'budget' must be from 0.1 to 600 seconds",
-                                _key_line(doc, "budget"))
+            raise DocumentError(
+                "front matter 'budget' must be from 0.1 to 600 seconds", _key_line(doc, "budget")
+            )
     return SheetSettings(dataset, digits, seconds, pinned, tuple(warnings))
 
 
@@ -127,7 +131,8 @@ class SheetRun:
             if item is not None and result.status == "ok":
                 recorded = item.recorded if item.recorded is not None else "(nothing recorded)"
                 result = dataclasses.replace(
-                    result, status="stale",
+                    result,
+                    status="stale",
                     message=f"recorded: {recorded}; recomputed: {item.recomputed}",
                 )
             marked.append(result)
@@ -161,16 +166,26 @@ class SheetRunner:
             per_cell[source.cell].extend(lines)
         stale = _staleness(doc, statements, results, lines_of)
         new_doc = with_results(doc, per_cell)
-        return SheetRun(settings, tuple(statements), tuple(results), new_doc,
-                        render_document(new_doc), tuple(stale))
+        return SheetRun(
+            settings,
+            tuple(statements),
+            tuple(results),
+            new_doc,
+            render_document(new_doc),
+            tuple(stale),
+        )
 
     def close(self) -> None:
         for context in self._contexts.values():
             context.worker.close()
 
 
-def _staleness(doc: SheetDocument, statements: Sequence[SourceStatement],
-               results: Sequence[StatementResult], lines_of: Sequence[list[str]]) -> list[StaleLine]:
+def _staleness(
+    doc: SheetDocument,
+    statements: Sequence[SourceStatement],
+    results: Sequence[StatementResult],
+    lines_of: Sequence[list[str]],
+) -> list[StaleLine]:
     """Recorded lines that differ from what the run records now, statement by statement."""
     stale: list[StaleLine] = []
     cells = doc.calc_cells()
@@ -181,13 +196,13 @@ def _staleness(doc: SheetDocument, statements: Sequence[SourceStatement],
         cell = cells[source.cell]
         recorded_all = cell.result.lines() if cell.result is not None else ()
         start = position[source.cell]
-        recorded = list(recorded_all[start:start + len(lines)])
+        recorded = list(recorded_all[start : start + len(lines)])
         position[source.cell] = start + len(lines)
         if recorded != lines:
             shown = "\n".join(recorded) if recorded else None
             stale.append(StaleLine(result, shown, "\n".join(lines)))
     for index, cell in enumerate(cells):
-        extra = cell.result.lines()[position[index]:] if cell.result is not None else ()
+        extra = cell.result.lines()[position[index] :] if cell.result is not None else ()
         if extra:
             # Extra recorded lines with nothing to match them: the last statement is stale.
             last = [r for s, r in zip(statements, results, strict=True) if s.cell == index]

@@ -65,7 +65,9 @@ class Worker:
                 self._connection.close()
         self._process = self._connection = None
 
-    def call(self, function: Callable[..., Any], args: tuple[Any, ...], seconds: float, what: str) -> Any:
+    def call(
+        self, function: Callable[..., Any], args: tuple[Any, ...], seconds: float, what: str
+    ) -> Any:
         """``function(*args)`` in the worker; BudgetError after ``seconds``."""
         with self._lock:
             if self._process is None or not self._process.is_alive():

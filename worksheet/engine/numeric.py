@@ -99,17 +99,27 @@ class NumpyBackend(Backend):
 
     def power(self, base: Any, exponent: Any) -> Any:
         with self.np.errstate(over="ignore", invalid="ignore", divide="ignore"):
-            return self.np.power(base, exponent) if isinstance(base, self.np.ndarray) or isinstance(
-                exponent, self.np.ndarray
-            ) else super().power(base, exponent)
+            return (
+                self.np.power(base, exponent)
+                if isinstance(base, self.np.ndarray) or isinstance(exponent, self.np.ndarray)
+                else super().power(base, exponent)
+            )
 
     def functions(self) -> Mapping[type, Any]:
         np = self.np
         return {
-            sympy.exp: np.exp, sympy.log: np.log, sympy.sin: np.sin, sympy.cos: np.cos,
-            sympy.tan: np.tan, sympy.asin: np.arcsin, sympy.acos: np.arccos,
-            sympy.atan: np.arctan, sympy.sinh: np.sinh, sympy.cosh: np.cosh,
-            sympy.tanh: np.tanh, sympy.Abs: np.abs,
+            sympy.exp: np.exp,
+            sympy.log: np.log,
+            sympy.sin: np.sin,
+            sympy.cos: np.cos,
+            sympy.tan: np.tan,
+            sympy.asin: np.arcsin,
+            sympy.acos: np.arccos,
+            sympy.atan: np.arctan,
+            sympy.sinh: np.sinh,
+            sympy.cosh: np.cosh,
+            sympy.tanh: np.tanh,
+            sympy.Abs: np.abs,
             sympy.Min: lambda *a: np.minimum.reduce(np.broadcast_arrays(*a)),
             sympy.Max: lambda *a: np.maximum.reduce(np.broadcast_arrays(*a)),
         }
@@ -151,10 +161,20 @@ class MpBackend(Backend):
     def functions(self) -> Mapping[type, Any]:
         mp = self.mp
         return {
-            sympy.exp: mp.exp, sympy.log: mp.log, sympy.sin: mp.sin, sympy.cos: mp.cos,
-            sympy.tan: mp.tan, sympy.asin: mp.asin, sympy.acos: mp.acos, sympy.atan: mp.atan,
-            sympy.sinh: mp.sinh, sympy.cosh: mp.cosh, sympy.tanh: mp.tanh, sympy.Abs: abs,
-            sympy.Min: min, sympy.Max: max,
+            sympy.exp: mp.exp,
+            sympy.log: mp.log,
+            sympy.sin: mp.sin,
+            sympy.cos: mp.cos,
+            sympy.tan: mp.tan,
+            sympy.asin: mp.asin,
+            sympy.acos: mp.acos,
+            sympy.atan: mp.atan,
+            sympy.sinh: mp.sinh,
+            sympy.cosh: mp.cosh,
+            sympy.tanh: mp.tanh,
+            sympy.Abs: abs,
+            sympy.Min: min,
+            sympy.Max: max,
         }
 
     def add(self, items: list[Any]) -> Any:

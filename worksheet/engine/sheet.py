@@ -106,8 +106,11 @@ class SheetEvaluator:
             if isinstance(parsed, WorksheetError):
                 cached = (parsed, None, frozenset())
             else:
-                defines = getattr(parsed, "name", None) if isinstance(
-                    parsed, t.Definition | t.Relation | t.Declaration) else None
+                defines = (
+                    getattr(parsed, "name", None)
+                    if isinstance(parsed, t.Definition | t.Relation | t.Declaration)
+                    else None
+                )
                 cached = (parsed, defines, frozenset(referenced_names(parsed)))
             self._parse_cache[key] = cached
         return cached
@@ -121,11 +124,17 @@ class SheetEvaluator:
             previous = old.get((source.line, source.text))
             slot = _Slot(source, parsed, defines, uses)
             if previous is not None:
-                slot.key, slot.result, slot.binding = previous.key, previous.result, previous.binding
+                slot.key, slot.result, slot.binding = (
+                    previous.key,
+                    previous.result,
+                    previous.binding,
+                )
             slots.append(slot)
         self._slots = slots
         if len(self._parse_cache) > 4 * len(slots) + 1000:
-            self._parse_cache = {(s.source.line, s.source.text): self._parse(s.source) for s in slots}
+            self._parse_cache = {
+                (s.source.line, s.source.text): self._parse(s.source) for s in slots
+            }
 
         first_definer: dict[str, int] = {}
         for index, slot in enumerate(slots):
@@ -145,8 +154,9 @@ class SheetEvaluator:
 
         evaluator = StatementEvaluator(self.ctx, lookup, values)
         for index, slot in enumerate(slots):
-            result, binding = self._evaluate_slot(index, slot, slots, first_definer, visible,
-                                                  failed, lookup, evaluator)
+            result, binding = self._evaluate_slot(
+                index, slot, slots, first_definer, visible, failed, lookup, evaluator
+            )
             slot.result, slot.binding = result, binding
             if slot.defines is not None:
                 if binding is not None and first_definer.get(slot.defines) == index:
@@ -157,18 +167,28 @@ class SheetEvaluator:
                     failed[slot.defines] = slot.source.line
         return [slot.result for slot in slots if slot.result is not None]
 
-    def _evaluate_slot(self, index: int, slot: _Slot, slots: list[_Slot],
-                       first_definer: dict[str, int], visible: dict[str, Binding],
-                       failed: dict[str, int], lookup, evaluator: StatementEvaluator
-                       ) -> tuple[StatementResult, Binding | None]:
+    def _evaluate_slot(
+        self,
+        index: int,
+        slot: _Slot,
+        slots: list[_Slot],
+        first_definer: dict[str, int],
+        visible: dict[str, Binding],
+        failed: dict[str, int],
+        lookup,
+        evaluator: StatementEvaluator,
+    ) -> tuple[StatementResult, Binding | None]:
         parsed = slot.parsed
         line = slot.source.line
         if isinstance(parsed, WorksheetError):
             message = WorksheetError(parsed.message, parsed.line or line, parsed.column).located()
-            return StatementResult(line, "error", slot.source.text.strip(), "error",
-                                   message=message, record=message), None
-        key = (tuple((name, _serial(visible.get(name)), name in failed) for name in sorted(slot.uses)),
-               self.ctx.digits)
+            return StatementResult(
+                line, "error", slot.source.text.strip(), "error", message=message, record=message
+            ), None
+        key = (
+            tuple((name, _serial(visible.get(name)), name in failed) for name in sorted(slot.uses)),
+            self.ctx.digits,
+        )
         if slot.key == key and slot.result is not None:
             return slot.result, slot.binding
         slot.key = key
@@ -177,20 +197,30 @@ class SheetEvaluator:
             first_line = slots[first_definer[slot.defines]].source.line
             err = NameResolutionError(
                 f"'{slot.defines}' is already defined on line {first_line}; "
-                f"line {line} defines it again (pick a new name)", line)
+                f"line {line} defines it again (pick a new name)",
+                line,
+            )
             return evaluator.error_result(parsed, err), None
         for name in sorted(slot.uses):
             definer = first_definer.get(name)
             if definer is not None and definer > index:
                 err = NameResolutionError(
                     f"'{name}' is used before its definition on line "
-                    f"{slots[definer].source.line}; move this line below it", line)
+                    f"{slots[definer].source.line}; move this line below it",
+                    line,
+                )
                 return evaluator.error_result(parsed, err), None
             if name in failed and name not in visible:
                 message = f"line {line}: depends on line {failed[name]}, which failed"
-                return StatementResult(line, KINDS[type(parsed)], parsed.source, "skipped",
-                                       name=getattr(parsed, "name", None), message=message,
-                                       record=message), None
+                return StatementResult(
+                    line,
+                    KINDS[type(parsed)],
+                    parsed.source,
+                    "skipped",
+                    name=getattr(parsed, "name", None),
+                    message=message,
+                    record=message,
+                ), None
         with statement_timer(self.ctx.seconds * 2):
             try:
                 return evaluator.evaluate(parsed)
@@ -200,5 +230,8 @@ class SheetEvaluator:
     @property
     def bindings(self) -> dict[str, Binding]:
         """Every name the last run defined, in reading order."""
-        return {slot.defines: slot.binding for slot in self._slots
-                if slot.defines is not None and slot.binding is not None}
+        return {
+            slot.defines: slot.binding
+            for slot in self._slots
+            if slot.defines is not None and slot.binding is not None
+        }

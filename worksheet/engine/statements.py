@@ -59,8 +59,12 @@ class StatementEvaluator:
         values: SI numbers of every sheet symbol that has one (kept up to date by the caller).
     """
 
-    def __init__(self, context: Context, lookup: Callable[[str], Binding | None],
-                 values: Mapping[sympy.Symbol, float]):
+    def __init__(
+        self,
+        context: Context,
+        lookup: Callable[[str], Binding | None],
+        values: Mapping[sympy.Symbol, float],
+    ):
         self.ctx = context
         self.lookup = lookup
         self.values = values
@@ -81,8 +85,9 @@ class StatementEvaluator:
                 return self._check(stmt), None
             if isinstance(stmt, t.Blank):
                 return StatementResult(stmt.line, kind, "", "ok"), None
-            raise EvaluationError(f"'{kind}' statements are not available yet", stmt.line,
-                                  stmt.column)
+            raise EvaluationError(
+                f"'{kind}' statements are not available yet", stmt.line, stmt.column
+            )
         except WorksheetError as err:
             return self.error_result(stmt, err), None
         except RecursionError:
@@ -94,14 +99,20 @@ class StatementEvaluator:
         located = WorksheetError(err.message, line, err.column).located()
         name = getattr(stmt, "name", None)
         return StatementResult(
-            stmt.line, KINDS[type(stmt)], stmt.source, "error", name=name, message=located,
+            stmt.line,
+            KINDS[type(stmt)],
+            stmt.source,
+            "error",
+            name=name,
+            message=located,
             record=located,
         )
 
     # --- pieces ---
     def translator(self) -> Translator:
-        return Translator(self.lookup, self.ctx.registry, self.ctx.unit_values, self.ctx.worker,
-                          self.ctx.seconds)
+        return Translator(
+            self.lookup, self.ctx.registry, self.ctx.unit_values, self.ctx.worker, self.ctx.seconds
+        )
 
     def _all_values(self) -> dict[sympy.Symbol, float]:
         values = self.ctx.value_map()
@@ -141,16 +152,19 @@ class StatementEvaluator:
             raise EvaluationError("the result is not a number (an undefined operation)")
         return value
 
-    def output_unit(self, quantity: Quantity, conversion: t.Conversion | None,
-                    at: t.Statement) -> tuple[str, float, float]:
+    def output_unit(
+        self, quantity: Quantity, conversion: t.Conversion | None, at: t.Statement
+    ) -> tuple[str, float, float]:
         """(unit text, SI factor, offset) for recording a quantity."""
         dim = quantity.typed.dim
         if conversion is not None:
             if conversion.natural:
-                raise EvaluationError("natural-unit views are not available yet",
-                                      conversion.line, conversion.column)
-            target = self.ctx.registry.resolve(conversion.unit, conversion.line,
-                                               conversion.column + 3)
+                raise EvaluationError(
+                    "natural-unit views are not available yet", conversion.line, conversion.column
+                )
+            target = self.ctx.registry.resolve(
+                conversion.unit, conversion.line, conversion.column + 3
+            )
             if target.dimension != dim:
                 raise DimensionError(
                     f"cannot express {dim.name()} ({dim.si_unit() or '1'}) in "
@@ -180,23 +194,40 @@ class StatementEvaluator:
         origin = Origin.DERIVED if deps else Origin.GIVEN
         unit, factor, offset = self.output_unit(quantity, stmt.conversion, stmt)
         uncertainty = self._uncertainty(stmt, quantity, tr)
-        symbol = symbol_for(stmt.name, quantity.si,
-                            positive_hint=None if quantity.si is not None else
-                            bool(typed.expr.is_positive))
+        symbol = symbol_for(
+            stmt.name,
+            quantity.si,
+            positive_hint=None if quantity.si is not None else bool(typed.expr.is_positive),
+        )
         binding = Binding(
-            name=stmt.name, origin=origin, symbol=symbol, dimension=typed.dim, line=stmt.line,
-            local=typed.expr, deps=deps, value=quantity.si, uncertainty=uncertainty,
+            name=stmt.name,
+            origin=origin,
+            symbol=symbol,
+            dimension=typed.dim,
+            line=stmt.line,
+            local=typed.expr,
+            deps=deps,
+            value=quantity.si,
+            uncertainty=uncertainty,
             _resolver=self.lookup,
         )
         if origin is Origin.GIVEN:
             binding.local = None
-        result = self._quantity_result(stmt, "definition", stmt.name, binding, quantity,
-                                       (unit, factor, offset), tr.used_verb)
+        result = self._quantity_result(
+            stmt, "definition", stmt.name, binding, quantity, (unit, factor, offset), tr.used_verb
+        )
         return result, binding
 
-    def _quantity_result(self, stmt: t.Statement, kind: str, name: str | None,
-                         binding: Binding | None, quantity: Quantity,
-                         unit_info: tuple[str, float, float], verb: bool) -> StatementResult:
+    def _quantity_result(
+        self,
+        stmt: t.Statement,
+        kind: str,
+        name: str | None,
+        binding: Binding | None,
+        quantity: Quantity,
+        unit_info: tuple[str, float, float],
+        verb: bool,
+    ) -> StatementResult:
         unit, factor, offset = unit_info
         typed = quantity.typed
         head = name if name is not None else to_text(stmt.expr)  # type: ignore[attr-defined]
@@ -206,8 +237,15 @@ class StatementEvaluator:
         if quantity.si is None:
             record = f"{head} = {symbolic}"
             return StatementResult(
-                stmt.line, kind, stmt.source, "ok", name=name, dimension=dim.name(),
-                symbolic=symbolic, si_unit=compose_base_units(dim.exponents), record=record,
+                stmt.line,
+                kind,
+                stmt.source,
+                "ok",
+                name=name,
+                dimension=dim.name(),
+                symbolic=symbolic,
+                si_unit=compose_base_units(dim.exponents),
+                record=record,
                 unit=unit or None,
             )
         value_text, shown = self._value_text(quantity.si, unit, factor, offset)
@@ -217,12 +255,23 @@ class StatementEvaluator:
             shown_u = uncertainty / factor
             number, _, unit_part = value_text.partition(" ")
             value_text = f"{number} +- {format_uncertainty(shown_u)}" + (
-                f" {unit_part}" if unit_part else "")
+                f" {unit_part}" if unit_part else ""
+            )
         record = f"{head} = {symbolic} = {value_text}" if verb else f"{head} = {value_text}"
         return StatementResult(
-            stmt.line, kind, stmt.source, "ok", name=name, value=shown, unit=unit or "",
-            si_value=quantity.si, si_unit=compose_base_units(dim.exponents),
-            dimension=dim.name(), symbolic=symbolic, uncertainty=shown_u, record=record,
+            stmt.line,
+            kind,
+            stmt.source,
+            "ok",
+            name=name,
+            value=shown,
+            unit=unit or "",
+            si_value=quantity.si,
+            si_unit=compose_base_units(dim.exponents),
+            dimension=dim.name(),
+            symbolic=symbolic,
+            uncertainty=shown_u,
+            record=record,
         )
 
     def _uncertainty(self, stmt: t.Definition, quantity: Quantity, tr: Translator) -> float | None:
@@ -269,12 +318,23 @@ class StatementEvaluator:
         except DimensionError:
             symbolic = to_text(stmt.expr)
         binding = Binding(
-            name=stmt.name, origin=Origin.RELATION, symbol=sympy.Symbol(stmt.name),
-            dimension=Dimension(), line=stmt.line, deps=deps, params=stmt.params, body=stmt.expr,
+            name=stmt.name,
+            origin=Origin.RELATION,
+            symbol=sympy.Symbol(stmt.name),
+            dimension=Dimension(),
+            line=stmt.line,
+            deps=deps,
+            params=stmt.params,
+            body=stmt.expr,
         )
         head = f"{stmt.name}({', '.join(stmt.params)})"
         return StatementResult(
-            stmt.line, "relation", stmt.source, "ok", name=stmt.name, symbolic=symbolic,
+            stmt.line,
+            "relation",
+            stmt.source,
+            "ok",
+            name=stmt.name,
+            symbolic=symbolic,
             record=f"{head} = {symbolic}",
         ), binding
 
@@ -283,32 +343,42 @@ class StatementEvaluator:
         unit = self.ctx.registry.resolve(stmt.unit, stmt.line, stmt.column)
         if unit.is_offset:
             raise DimensionError("declare temperatures in [K]", stmt.line, stmt.column)
-        if existing is not None and existing.origin is Origin.CONSTANT:
-            if existing.dimension != unit.dimension:
-                raise DimensionError(
-                    f"'{stmt.name}' is a constant of {existing.dimension.name()} "
-                    f"({existing.dimension.si_unit()}); it cannot be declared as "
-                    f"{unit.dimension.name()}",
-                    stmt.line,
-                    stmt.column,
-                )
+        if (
+            existing is not None
+            and existing.origin is Origin.CONSTANT
+            and existing.dimension != unit.dimension
+        ):
+            raise DimensionError(
+                f"'{stmt.name}' is a constant of {existing.dimension.name()} "
+                f"({existing.dimension.si_unit()}); it cannot be declared as "
+                f"{unit.dimension.name()}",
+                stmt.line,
+                stmt.column,
+            )
         binding = Binding(
-            name=stmt.name, origin=Origin.DECLARED,
-            symbol=sympy.Symbol(stmt.name, positive=True), dimension=unit.dimension,
+            name=stmt.name,
+            origin=Origin.DECLARED,
+            symbol=sympy.Symbol(stmt.name, positive=True),
+            dimension=unit.dimension,
             line=stmt.line,
         )
         return StatementResult(
-            stmt.line, "declaration", stmt.source, "ok", name=stmt.name,
-            dimension=unit.dimension.name(), unit=stmt.unit.source,
-            si_unit=compose_base_units(unit.dimension.exponents), symbolic=stmt.name,
+            stmt.line,
+            "declaration",
+            stmt.source,
+            "ok",
+            name=stmt.name,
+            dimension=unit.dimension.name(),
+            unit=stmt.unit.source,
+            si_unit=compose_base_units(unit.dimension.exponents),
+            symbolic=stmt.name,
         ), binding
 
     def _display(self, stmt: t.Display) -> StatementResult:
         tr = self.translator()
         quantity = self.quantity(tr, stmt.expr)
         unit_info = self.output_unit(quantity, stmt.conversion, stmt)
-        return self._quantity_result(stmt, "display", None, None, quantity, unit_info,
-                                     tr.used_verb)
+        return self._quantity_result(stmt, "display", None, None, quantity, unit_info, tr.used_verb)
 
     def _check(self, stmt: t.Check) -> StatementResult:
         tr = self.translator()
@@ -329,12 +399,18 @@ class StatementEvaluator:
         word = "holds" if holds else "fails"
         record = f"{stmt.source}: {word}" + (f" ({detail})" if detail and not holds else "")
         return StatementResult(
-            stmt.line, "check", stmt.source, status, dimension=left.typed.dim.name(),
-            message=None if holds else detail, record=record,
+            stmt.line,
+            "check",
+            stmt.source,
+            status,
+            dimension=left.typed.dim.name(),
+            message=None if holds else detail,
+            record=record,
         )
 
-    def _numeric_claim(self, stmt: t.Check, a: float, b: float, tr: Translator,
-                       left: Quantity) -> tuple[bool, str]:
+    def _numeric_claim(
+        self, stmt: t.Check, a: float, b: float, tr: Translator, left: Quantity
+    ) -> tuple[bool, str]:
         unit = left.typed.dim.si_unit()
         digits = self.ctx.digits
 
@@ -354,26 +430,31 @@ class StatementEvaluator:
                         stmt.absolute_tolerance.column,
                     )
                 return abs(a - b) <= abs(bound.si), detail
-            tolerance = float(stmt.tolerance if stmt.tolerance is not None
-                              else DEFAULT_NUMERIC_TOLERANCE)
+            tolerance = float(
+                stmt.tolerance if stmt.tolerance is not None else DEFAULT_NUMERIC_TOLERANCE
+            )
             scale = max(abs(a), abs(b))
             difference = abs(a - b)
             relative = difference / scale if scale else 0.0
-            return difference <= tolerance * scale, f"{detail}, relative difference " \
-                f"{format_number(relative, 2)}"
+            return (
+                difference <= tolerance * scale,
+                f"{detail}, relative difference {format_number(relative, 2)}",
+            )
         if op == "~":
             if a <= 0 or b <= 0:
                 if a == b:
                     return True, detail
-                raise EvaluationError("'~' compares orders of magnitude of positive values",
-                                      stmt.line)
+                raise EvaluationError(
+                    "'~' compares orders of magnitude of positive values", stmt.line
+                )
             spread = abs(math.log10(a / b))
             return spread <= 0.5, f"{detail}, {spread:.2f} decades apart"
         compare = {"<": a < b, "<=": a <= b, ">": a > b, ">=": a >= b}
         return compare[op], detail
 
-    def _symbolic_claim(self, stmt: t.Check, left: Quantity, right: Quantity,
-                        tr: Translator) -> tuple[bool, str]:
+    def _symbolic_claim(
+        self, stmt: t.Check, left: Quantity, right: Quantity, tr: Translator
+    ) -> tuple[bool, str]:
         # Compare forms in givens, so derived names are seen through.
         expanded = self.translator()
         lhs = expanded.translate(stmt.left, expand=True).expr
@@ -386,8 +467,12 @@ class StatementEvaluator:
             return bool(zero), f"{format_expr(lhs)} differs from {format_expr(rhs)}"
         if stmt.op == "~":
             raise EvaluationError("'~' needs numbers on both sides", stmt.line)
-        sign = {"<": (-difference).is_positive, "<=": (-difference).is_nonnegative,
-                ">": difference.is_positive, ">=": difference.is_nonnegative}[stmt.op]
+        sign = {
+            "<": (-difference).is_positive,
+            "<=": (-difference).is_nonnegative,
+            ">": difference.is_positive,
+            ">=": difference.is_nonnegative,
+        }[stmt.op]
         if sign is None:
             raise EvaluationError(
                 f"cannot decide {format_expr(lhs)} {stmt.op} {format_expr(rhs)} symbolically; "
@@ -404,7 +489,11 @@ def _lone_unit_value(node: t.Expr) -> tuple[Fraction, t.Unit] | None:
         sign, node = -1, node.operand
     if isinstance(node, t.Unit):
         return Fraction(sign), node
-    if (isinstance(node, t.BinOp) and node.op == "*" and isinstance(node.left, t.Number)
-            and isinstance(node.right, t.Unit)):
+    if (
+        isinstance(node, t.BinOp)
+        and node.op == "*"
+        and isinstance(node.left, t.Number)
+        and isinstance(node.right, t.Unit)
+    ):
         return node.left.value * sign, node.right
     return None

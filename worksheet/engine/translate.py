@@ -7,9 +7,9 @@ be exact numbers. Names resolve only through the sheet's bindings and the pinned
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
-import math
 from fractions import Fraction
 
 import sympy
@@ -50,8 +50,18 @@ FUNCTIONS: dict[str, Callable[..., sympy.Expr]] = {
     "tanh": sympy.tanh,
 }
 VERBS = frozenset(
-    {"diff", "integrate", "solve", "simplify", "expand", "factor", "series", "limit", "dsolve",
-     "subs"}
+    {
+        "diff",
+        "integrate",
+        "solve",
+        "simplify",
+        "expand",
+        "factor",
+        "series",
+        "limit",
+        "dsolve",
+        "subs",
+    }
 )
 OTHER_CALLS = frozenset({"sqrt", "abs", "min", "max"})
 BUILTIN_CALLS = frozenset(FUNCTIONS) | VERBS | OTHER_CALLS
@@ -90,7 +100,9 @@ class Translator:
     used_verb: bool = False
 
     # --- entry point ---
-    def translate(self, node: t.Expr, local: dict[str, Typed] | None = None, expand: bool = False) -> Typed:
+    def translate(
+        self, node: t.Expr, local: dict[str, Typed] | None = None, expand: bool = False
+    ) -> Typed:
         return self._node(node, local or {}, expand)
 
     def _node(self, node: t.Expr, local: dict[str, Typed], expand: bool) -> Typed:
@@ -249,8 +261,7 @@ class Translator:
         binding = self.lookup(name)
         if binding is None:
             raise NameResolutionError(
-                f"unknown function '{name}'; the functions are "
-                + ", ".join(sorted(BUILTIN_CALLS)),
+                f"unknown function '{name}'; the functions are " + ", ".join(sorted(BUILTIN_CALLS)),
                 node.line,
                 node.column,
             )
@@ -258,7 +269,9 @@ class Translator:
             raise NameResolutionError(f"'{name}' is not a relation", node.line, node.column)
         return self._relation_call(node, binding, local, expand)
 
-    def _relation_call(self, node: t.Call, binding: Binding, local: dict[str, Typed], expand: bool) -> Typed:
+    def _relation_call(
+        self, node: t.Call, binding: Binding, local: dict[str, Typed], expand: bool
+    ) -> Typed:
         params = binding.params
         if len(node.args) != len(params):
             raise NameResolutionError(
@@ -291,7 +304,9 @@ class Translator:
         return node.args
 
     # --- verbs run in the worker ---
-    def run(self, function: Callable[..., object], args: tuple[object, ...], what: str, node: t.Node) -> object:
+    def run(
+        self, function: Callable[..., object], args: tuple[object, ...], what: str, node: t.Node
+    ) -> object:
         try:
             return self.worker.call(function, args, self.seconds, what)
         except (BudgetError, EvaluationError) as err:
@@ -307,7 +322,9 @@ def _guard_exact_power(base: sympy.Expr, exponent: sympy.Expr, node: t.Power) ->
     if not (base.is_Number and exponent.is_Number):
         if exponent.is_Integer and abs(int(exponent)) > 10**6:
             raise BudgetError(
-                f"the exponent {exponent} is too large to expand symbolically", node.line, node.column
+                f"the exponent {exponent} is too large to expand symbolically",
+                node.line,
+                node.column,
             )
         return
     if base in (0, 1, -1) or not base.is_Rational:

@@ -35,16 +35,24 @@ def _whole_number(node: t.Expr, what: str, most: int) -> int:
     return int(node.value)
 
 
-def _variable(tr: Translator, node: t.Expr, local: dict[str, Typed], verb: str,
-              inferred: Dimension | None = None) -> tuple[sympy.Symbol, Dimension, dict[str, Typed]]:
+def _variable(
+    tr: Translator,
+    node: t.Expr,
+    local: dict[str, Typed],
+    verb: str,
+    inferred: Dimension | None = None,
+) -> tuple[sympy.Symbol, Dimension, dict[str, Typed]]:
     """The symbol a verb works in, and the local names to translate its body with."""
     if not isinstance(node, t.Name):
-        raise ParseError(f"{verb}: the variable must be a name, not {to_text(node)}",
-                         node.line, node.column)
+        raise ParseError(
+            f"{verb}: the variable must be a name, not {to_text(node)}", node.line, node.column
+        )
     if node.id in local:
         typed = local[node.id]
         if not typed.expr.is_Symbol:
-            raise ParseError(f"{verb}: '{node.id}' is not a plain symbol here", node.line, node.column)
+            raise ParseError(
+                f"{verb}: '{node.id}' is not a plain symbol here", node.line, node.column
+            )
         return typed.expr, typed.dim, local
     binding = tr.lookup(node.id)
     if binding is not None:
@@ -53,7 +61,8 @@ def _variable(tr: Translator, node: t.Expr, local: dict[str, Typed], verb: str,
             return binding.symbol, binding.dimension, local
         raise NameResolutionError(
             f"{verb}: '{node.id}' is {binding.origin.value}, not a symbol to work in; "
-            f"declare one, e.g. {node.id}_ : [unit]" if binding.origin is not Origin.DERIVED
+            f"declare one, e.g. {node.id}_ : [unit]"
+            if binding.origin is not Origin.DERIVED
             else f"{verb}: '{node.id}' is derived (line {binding.line}); work in the quantity "
             "it is derived from, or declare a new symbol",
             node.line,
@@ -71,8 +80,9 @@ def _variable(tr: Translator, node: t.Expr, local: dict[str, Typed], verb: str,
     return symbol, inferred, scope
 
 
-def _same_dimension(what: str, left_node: t.Expr, left: Typed, right_node: t.Expr, right: Typed,
-                    at: t.Node) -> None:
+def _same_dimension(
+    what: str, left_node: t.Expr, left: Typed, right_node: t.Expr, right: Typed, at: t.Node
+) -> None:
     if left.dim != right.dim and left.expr != 0 and right.expr != 0:
         raise DimensionError(
             f"{what}: {_describe(left_node, left)} and {_describe(right_node, right)} differ",
@@ -128,13 +138,15 @@ def translate_verb(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typ
         variable, var_dim, scope = _variable(tr, args[1], local, name)
         left = tr.translate(equation.left, scope, expand=True)
         right = tr.translate(equation.right, scope, expand=True)
-        _same_dimension("cannot solve, the two sides", equation.left, left, equation.right,
-                        right, equation)
+        _same_dimension(
+            "cannot solve, the two sides", equation.left, left, equation.right, right, equation
+        )
         roots = tr.run(ops.solve, (left.expr, right.expr, variable), name, node)
         assert isinstance(roots, list)
         if not roots:
-            raise EvaluationError(f"solve: no real solution for {variable.name}", node.line,
-                                  node.column)
+            raise EvaluationError(
+                f"solve: no real solution for {variable.name}", node.line, node.column
+            )
         if len(roots) > 1:
             shown = "; ".join(str(root) for root in roots)
             raise EvaluationError(
@@ -174,11 +186,14 @@ def _dsolve(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typed:
     tr._args(node, 5, 5)
     equation, unknown_node, variable_node, start_node, initial_node = node.args
     if not isinstance(equation, t.Equation):
-        raise ParseError("dsolve needs an equation first: dsolve(diff(M, t) == f, M, t, t0, M0)",
-                         node.line, node.column)
+        raise ParseError(
+            "dsolve needs an equation first: dsolve(diff(M, t) == f, M, t, t0, M0)",
+            node.line,
+            node.column,
+        )
     start = tr.translate(start_node, local, expand=True)
     inferred = start.dim if start.expr != 0 else None
-    variable, var_dim, scope = _variable(tr, variable_node, local, "dsolve", inferred)
+    variable, _, scope = _variable(tr, variable_node, local, "dsolve", inferred)
     unknown, unknown_dim, _ = _variable(tr, unknown_node, local, "dsolve")
     initial = tr.translate(initial_node, local, expand=True)
     if initial.expr != 0 and initial.dim != unknown_dim:
@@ -194,6 +209,10 @@ def _dsolve(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typed:
     left = tr.translate(equation.left, scope, expand=True)
     right = tr.translate(equation.right, scope, expand=True)
     _same_dimension("dsolve: the two sides", equation.left, left, equation.right, right, equation)
-    result = tr.run(ops.dsolve, (left.expr, right.expr, function, variable, start.expr,
-                                 initial.expr), "dsolve", node)
+    result = tr.run(
+        ops.dsolve,
+        (left.expr, right.expr, function, variable, start.expr, initial.expr),
+        "dsolve",
+        node,
+    )
     return _typed(result, unknown_dim)

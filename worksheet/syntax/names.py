@@ -34,8 +34,9 @@ def referenced_names(stmt: t.AnyStatement) -> set[str]:
     if isinstance(stmt, t.Display):
         return _expr_names(stmt.expr)
     if isinstance(stmt, t.Check):
-        return _expr_names(stmt.left) | _expr_names(stmt.right) | _expr_names(
-            stmt.absolute_tolerance)
+        return (
+            _expr_names(stmt.left) | _expr_names(stmt.right) | _expr_names(stmt.absolute_tolerance)
+        )
     if isinstance(stmt, t.Scaling):
         names = {stmt.target}
         for name, expr in stmt.around:

@@ -345,9 +345,7 @@ def _parse_check(parser: _Parser, pos: tuple[int, int, str]) -> t.Check:
     left = parser.expression()
     token = parser.peek()
     if not (token.kind is Kind.OP and token.text in COMPARISONS):
-        raise parser.error(
-            f"expected a comparison (==, <, <=, >, >=, ~), found {token.describe()}"
-        )
+        raise parser.error(f"expected a comparison (==, <, <=, >, >=, ~), found {token.describe()}")
     op = parser.take().text
     right = parser.expression()
     tolerance: Fraction | None = None

@@ -38,8 +38,26 @@ class Token:
 
 # Longest first so that '**' wins over '*', '<=' over '<', '+-' over '+'.
 _OPERATORS = (
-    "**", "==", "<=", ">=", "+-", "..",
-    "+", "-", "*", "/", "^", "(", ")", ",", "=", "<", ">", "~", ":", "±",
+    "**",
+    "==",
+    "<=",
+    ">=",
+    "+-",
+    "..",
+    "+",
+    "-",
+    "*",
+    "/",
+    "^",
+    "(",
+    ")",
+    ",",
+    "=",
+    "<",
+    ">",
+    "~",
+    ":",
+    "±",
 )
 _ALIASES = {"π": "pi", "ħ": "hbar", "×": "*", "·": "*", "−": "-", "²": "^2", "³": "^3"}
 
@@ -124,7 +142,7 @@ def tokenize(text: str, line: int = 1, column: int = 1) -> list[Token]:
             end = _scan_number(text, i)
             if end < n and _is_name_start(text[end]):
                 raise ParseError(
-                    f"a number runs into a name ('{text[i:end + 1]}'); put '*' between them, "
+                    f"a number runs into a name ('{text[i : end + 1]}'); put '*' between them, "
                     "or brackets around a unit",
                     cur_line,
                     col(i),
@@ -168,7 +186,9 @@ def tokenize(text: str, line: int = 1, column: int = 1) -> list[Token]:
             if char in "'\"":
                 hint = " (the sheet language has no strings)"
             elif char in ".@{};!&|$`\\":
-                hint = " (the sheet language has no attribute access, code or statements of that kind)"
+                hint = (
+                    " (the sheet language has no attribute access, code or statements of that kind)"
+                )
             raise ParseError(f"unexpected character {shown}{hint}", cur_line, col(i))
     tokens.append(Token(Kind.END, "", cur_line, col(n)))
     return tokens

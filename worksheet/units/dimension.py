@@ -8,7 +8,13 @@ from fractions import Fraction
 BASE_NAMES = ("length", "mass", "time", "current", "temperature", "amount", "luminous intensity")
 BASE_UNITS = ("m", "kg", "s", "A", "K", "mol", "cd")
 PINT_BASES = (
-    "[length]", "[mass]", "[time]", "[current]", "[temperature]", "[substance]", "[luminosity]",
+    "[length]",
+    "[mass]",
+    "[time]",
+    "[current]",
+    "[temperature]",
+    "[substance]",
+    "[luminosity]",
 )
 
 _ZERO = (Fraction(0),) * 7

@@ -20,6 +20,7 @@ from worksheet.units.dimension import PINT_BASES, Dimension
 if TYPE_CHECKING:
     from worksheet.constants import Dataset
 
+
 @dataclass(frozen=True)
 class ResolvedUnit:
     """What a bracketed unit means: SI factor, dimension and (for degC/degF) an offset."""
@@ -88,12 +89,17 @@ class UnitRegistry:
         dims = dict(unit.dimensionality)
         extra = set(dims) - set(PINT_BASES)
         if extra:
-            raise ParseError(f"unit '{name}' has a dimension outside SI ({', '.join(sorted(extra))})")
-        exponents = tuple(Fraction(dims.get(base, 0)).limit_denominator(1000) for base in PINT_BASES)
+            raise ParseError(
+                f"unit '{name}' has a dimension outside SI ({', '.join(sorted(extra))})"
+            )
+        exponents = tuple(
+            Fraction(dims.get(base, 0)).limit_denominator(1000) for base in PINT_BASES
+        )
         if any(e.denominator != 1 for e in exponents):
             raise ParseError(
                 f"unit '{name}' is a Gaussian-system unit with half-integer dimensions; "
-                "it has no exact SI conversion here, write the SI unit instead (e.g. [T] for [gauss])"
+                "it has no exact SI conversion here; write the SI unit instead "
+                "(e.g. [T] for [gauss])"
             )
         dimension = Dimension(exponents)
         if not ureg.Quantity(1.0, unit)._ok_for_muldiv():
@@ -104,7 +110,9 @@ class UnitRegistry:
         factor = _clean(float(ureg.Quantity(1.0, unit).to_base_units().magnitude))
         return ResolvedUnit(name, factor, dimension, origin="pint")
 
-    def resolve(self, unit: UnitExpr, line: int | None = None, column: int | None = None) -> ResolvedUnit:
+    def resolve(
+        self, unit: UnitExpr, line: int | None = None, column: int | None = None
+    ) -> ResolvedUnit:
         """A whole bracket expression (``erg/s``) as one SI factor and dimension."""
         cached = self._units.get(unit.source)
         if cached is not None:
