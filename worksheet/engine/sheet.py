@@ -76,7 +76,7 @@ class _Slot:
     source: SourceStatement
     parsed: t.AnyStatement | WorksheetError
     defines: str | None
-    uses: frozenset[str]
+    uses: tuple[str, ...]  # sorted
     key: tuple | None = None
     result: StatementResult | None = None
     binding: Binding | None = None
@@ -104,14 +104,14 @@ class SheetEvaluator:
             except WorksheetError as err:
                 parsed = err
             if isinstance(parsed, WorksheetError):
-                cached = (parsed, None, frozenset())
+                cached = (parsed, None, ())
             else:
                 defines = (
                     getattr(parsed, "name", None)
                     if isinstance(parsed, t.Definition | t.Relation | t.Declaration)
                     else None
                 )
-                cached = (parsed, defines, frozenset(referenced_names(parsed)))
+                cached = (parsed, defines, tuple(sorted(referenced_names(parsed))))
             self._parse_cache[key] = cached
         return cached
 
@@ -186,7 +186,7 @@ class SheetEvaluator:
                 line, "error", slot.source.text.strip(), "error", message=message, record=message
             ), None
         key = (
-            tuple((name, _serial(visible.get(name)), name in failed) for name in sorted(slot.uses)),
+            tuple((name, _serial(visible.get(name)), name in failed) for name in slot.uses),
             self.ctx.digits,
         )
         if slot.key == key and slot.result is not None:
@@ -201,7 +201,7 @@ class SheetEvaluator:
                 line,
             )
             return evaluator.error_result(parsed, err), None
-        for name in sorted(slot.uses):
+        for name in slot.uses:
             definer = first_definer.get(name)
             if definer is not None and definer > index:
                 err = NameResolutionError(
