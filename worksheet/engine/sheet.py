@@ -2,7 +2,8 @@
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+import heapq
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import sympy
@@ -72,6 +73,19 @@ def _paren_balance(line: str) -> int:
 
 
 @dataclass
+class _RunState:
+    """What the last full run left behind, so that small edits can re-run only dependents."""
+
+    first_definer: dict[str, int]
+    visible: dict[str, Binding]
+    failed: dict[str, int]
+    values: dict[sympy.Symbol, float]
+    users: dict[str, list[int]]
+    lookup: Callable[[str], Binding | None]
+    evaluator: StatementEvaluator
+
+
+@dataclass
 class _Slot:
     source: SourceStatement
     parsed: t.AnyStatement | WorksheetError
@@ -94,6 +108,7 @@ class SheetEvaluator:
         self.ctx = context
         self._slots: list[_Slot] = []
         self._parse_cache: dict[tuple[int, str], tuple] = {}
+        self._state: _RunState | None = None
 
     def _parse(self, source: SourceStatement) -> tuple:
         key = (source.line, source.text)
@@ -117,6 +132,9 @@ class SheetEvaluator:
 
     def run(self, statements: Sequence[SourceStatement]) -> list[StatementResult]:
         """Evaluate all statements (reusing what is unchanged) and return their results."""
+        fast = self._run_changed_only(statements)
+        if fast is not None:
+            return fast
         old = {(slot.source.line, slot.source.text): slot for slot in self._slots}
         slots: list[_Slot] = []
         for source in statements:
@@ -165,6 +183,74 @@ class SheetEvaluator:
                         values[binding.symbol] = binding.value
                 elif first_definer.get(slot.defines) == index:
                     failed[slot.defines] = slot.source.line
+        users: dict[str, list[int]] = {}
+        for index, slot in enumerate(slots):
+            for name in slot.uses:
+                users.setdefault(name, []).append(index)
+        self._state = _RunState(first_definer, visible, failed, values, users, lookup, evaluator)
+        return [slot.result for slot in slots if slot.result is not None]
+
+    def _run_changed_only(self, statements: Sequence[SourceStatement]) -> list | None:
+        """Edits that keep every line and every defined name: re-run only the dependents.
+
+        Returns None when the fast path does not apply (lines moved, names changed).
+        """
+        state = self._state
+        slots = self._slots
+        if state is None or len(statements) != len(slots):
+            return None
+        changed: list[int] = []
+        for index, (source, slot) in enumerate(zip(statements, slots, strict=True)):
+            if source.line != slot.source.line or source.cell != slot.source.cell:
+                return None
+            if source.text != slot.source.text:
+                changed.append(index)
+        for index in changed:
+            parsed, defines, uses = self._parse(statements[index])
+            if defines != slots[index].defines:
+                return None
+        for index in changed:
+            parsed, defines, uses = self._parse(statements[index])
+            slots[index] = _Slot(statements[index], parsed, defines, uses)
+        users = state.users
+        for index in changed:  # the reverse map may gain names the new text reads
+            for name in slots[index].uses:
+                if index not in users.setdefault(name, []):
+                    users[name].append(index)
+                    users[name].sort()
+        pending = list(changed)
+        heapq.heapify(pending)
+        done: set[int] = set()
+        while pending:
+            index = heapq.heappop(pending)
+            if index in done:
+                continue
+            done.add(index)
+            slot = slots[index]
+            result, binding = self._evaluate_slot(
+                index,
+                slot,
+                slots,
+                state.first_definer,
+                state.visible,
+                state.failed,
+                state.lookup,
+                state.evaluator,
+            )
+            slot.result, slot.binding = result, binding
+            name = slot.defines
+            if name is not None and state.first_definer.get(name) == index:
+                if binding is not None:
+                    state.visible[name] = binding
+                    state.failed.pop(name, None)
+                    if binding.value is not None:
+                        state.values[binding.symbol] = binding.value
+                else:
+                    state.visible.pop(name, None)
+                    state.failed[name] = slot.source.line
+                for user in users.get(name, ()):
+                    if user > index and user not in done:
+                        heapq.heappush(pending, user)
         return [slot.result for slot in slots if slot.result is not None]
 
     def _evaluate_slot(
