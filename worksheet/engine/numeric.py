@@ -29,11 +29,14 @@ class Backend:
     name = "float"
 
     def number(self, value: sympy.Expr) -> Any:
-        if value.is_Integer:
-            return float(int(value))
-        if value.is_Rational:
-            return int(value.p) / int(value.q)
-        return float(value)
+        try:
+            if value.is_Integer:
+                return float(int(value))
+            if value.is_Rational:
+                return int(value.p) / int(value.q)
+            return float(value)
+        except OverflowError:
+            return math.inf if value > 0 else -math.inf
 
     def power(self, base: Any, exponent: Any) -> Any:
         try:

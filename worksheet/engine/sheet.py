@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import heapq
+import re
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
@@ -51,6 +52,9 @@ def split_statements(body: str, first_line: int, cell: int = 0) -> list[SourceSt
     return statements
 
 
+_DEFINED_NAME = re.compile(r"\s*([^\W\d]\w*)\s*(?:=(?!=)|:)")
+
+
 def _serial(binding: Binding | None) -> int:
     return -1 if binding is None else binding.serial
 
@@ -79,7 +83,7 @@ class _RunState:
     first_definer: dict[str, int]
     visible: dict[str, Binding]
     failed: dict[str, int]
-    values: dict[sympy.Symbol, float]
+    values: dict[sympy.Symbol, float | None]
     users: dict[str, list[int]]
     lookup: Callable[[str], Binding | None]
     evaluator: StatementEvaluator
@@ -119,7 +123,10 @@ class SheetEvaluator:
             except WorksheetError as err:
                 parsed = err
             if isinstance(parsed, WorksheetError):
-                cached = (parsed, None, ())
+                # A definition that does not parse still claims its name, so that the lines
+                # using it say they depend on it rather than that it is unknown.
+                claimed = _DEFINED_NAME.match(source.text)
+                cached = (parsed, claimed.group(1) if claimed else None, ())
             else:
                 defines = (
                     getattr(parsed, "name", None)
@@ -161,7 +168,7 @@ class SheetEvaluator:
 
         visible: dict[str, Binding] = {}
         failed: dict[str, int] = {}  # name -> line of the failed definition
-        values: dict[sympy.Symbol, float] = {}
+        values: dict[sympy.Symbol, float | None] = {}
         constants = self.ctx.constants
 
         def lookup(name: str) -> Binding | None:
@@ -179,7 +186,7 @@ class SheetEvaluator:
             if slot.defines is not None:
                 if binding is not None and first_definer.get(slot.defines) == index:
                     visible[slot.defines] = binding
-                    if binding.value is not None:
+                    if binding.value is not None or slot.defines in constants:
                         values[binding.symbol] = binding.value
                 elif first_definer.get(slot.defines) == index:
                     failed[slot.defines] = slot.source.line
@@ -243,7 +250,7 @@ class SheetEvaluator:
                 if binding is not None:
                     state.visible[name] = binding
                     state.failed.pop(name, None)
-                    if binding.value is not None:
+                    if binding.value is not None or name in self.ctx.constants:
                         state.values[binding.symbol] = binding.value
                 else:
                     state.visible.pop(name, None)

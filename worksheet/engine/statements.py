@@ -114,10 +114,8 @@ class StatementEvaluator:
             self.lookup, self.ctx.registry, self.ctx.unit_values, self.ctx.worker, self.ctx.seconds
         )
 
-    def _all_values(self) -> dict[sympy.Symbol, float]:
-        values = self.ctx.value_map()
-        values.update(self.values)
-        return values
+    def _all_values(self) -> Mapping[sympy.Symbol, float]:
+        return _Values(self.values, self.ctx)
 
     def quantity(self, tr: Translator, node: t.Expr) -> Quantity:
         """Translate and, where every name has a value, compute the SI number."""
@@ -480,6 +478,35 @@ class StatementEvaluator:
                 stmt.line,
             )
         return bool(sign), f"{format_expr(lhs)} {stmt.op} {format_expr(rhs)} is false"
+
+
+class _Values(Mapping):
+    """Sheet values first, then constants and unit factors; a sheet ``None`` hides a constant
+    (a declared constant is a symbol with no value)."""
+
+    def __init__(self, sheet: Mapping[sympy.Symbol, float | None], ctx: Context):
+        self.sheet = sheet
+        self.ctx = ctx
+
+    def __getitem__(self, symbol: sympy.Symbol) -> float:
+        if symbol in self.sheet:
+            value = self.sheet[symbol]
+            if value is None:
+                raise KeyError(symbol)
+            return value
+        unit = self.ctx.unit_values.get(symbol)
+        if unit is not None:
+            return unit
+        constant = self.ctx.constants.get(symbol.name)
+        if constant is not None and constant.symbol == symbol and constant.value is not None:
+            return constant.value
+        raise KeyError(symbol)
+
+    def __iter__(self):
+        return iter(self.sheet)
+
+    def __len__(self) -> int:
+        return len(self.sheet)
 
 
 def _lone_unit_value(node: t.Expr) -> tuple[Fraction, t.Unit] | None:

@@ -1,0 +1,250 @@
+"""The LaTeX export: a fragment, or a standalone article with amsmath and siunitx v3.
+
+Each calc statement is typeset from its tree (as written), then its recorded value; steps
+that cannot be typeset (errors, skipped, kinds without a math form) are shown as sheet text
+with their record. Output is deterministic byte for byte (no dates, no paths).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from worksheet.errors import WorksheetError
+from worksheet.export.latex_math import (
+    expr_latex,
+    name_latex,
+    operator_latex,
+    tolerance_latex,
+    value_latex,
+)
+from worksheet.export.latex_notes import code_lines_latex, note_latex
+from worksheet.export.latex_text import escape_text, texttt
+from worksheet.export.latex_units import unit_latex, unit_text_latex
+from worksheet.export.report import (
+    CAUTION,
+    CellItem,
+    NoteItem,
+    Report,
+    Step,
+    value_text,
+    written_with_verb,
+)
+from worksheet.syntax import parse_expression
+from worksheet.syntax import tree as t
+from worksheet.syntax.unparse import to_text
+
+PREAMBLE = (
+    "\\documentclass{article}\n"
+    "\\usepackage[T1]{fontenc}\n"
+    "\\usepackage{amsmath}\n"
+    "\\usepackage{amssymb}\n"
+    "\\usepackage{siunitx}\n"
+)
+FRAGMENT_HEADER = "% worksheet export; needs \\usepackage{amsmath,amssymb,siunitx} (siunitx v3)\n"
+
+
+@dataclass(frozen=True)
+class _MathLine:
+    left: str
+    right: str  # starts with the relation, e.g. "= ..."
+    note: str  # text for the annotation column
+
+
+def latex_document(report: Report, standalone: bool = True) -> str:
+    """The whole export as LaTeX source."""
+    body = latex_body(report)
+    if not standalone:
+        return FRAGMENT_HEADER + body
+    return (
+        PREAMBLE
+        + "\\begin{document}\n\n"
+        + "{\\centering\\LARGE " + escape_text(report.title) + "\\par}\n\n"
+        + "\\noindent\\textbf{Caution.} " + escape_text(CAUTION) + "\n\n"
+        + body
+        + "\\end{document}\n"
+    )
+
+
+def latex_body(report: Report) -> str:
+    parts = [_provenance(report)]
+    for item in report.items:
+        if isinstance(item, NoteItem):
+            parts.append(note_latex(item.text) + "\n")
+        elif isinstance(item, CellItem):
+            parts.append(cell_latex(item.steps, report.digits))
+    parts.append(_claims_table(report))
+    parts.append(_constants_table(report))
+    return "".join(parts)
+
+
+def _provenance(report: Report) -> str:
+    lines = []
+    if report.source_name:
+        lines.append("Sheet: " + texttt(report.source_name, keep_spaces=False) + ".")
+    pinned = "" if report.pinned else " (the sheet does not pin its constants; default used)"
+    lines.append("Constants: " + escape_text(report.dataset_name + " -- " + report.dataset_title)
+                 + escape_text(pinned) + ".")
+    lines.append(f"Numbers recorded to {report.digits} significant figures.")
+    return "\\noindent " + "\\\\\n".join(lines) + "\n\n"
+
+
+def cell_latex(steps: tuple[Step, ...], digits: int) -> str:
+    """One calc cell: runs of typeset steps in ``align*``, other steps as text between."""
+    out: list[str] = []
+    pending: list[_MathLine] = []
+    for step in steps:
+        line = step_math(step, digits)
+        if line is not None:
+            pending.append(line)
+            continue
+        out.append(_align(pending))
+        pending = []
+        out.append(step_text(step))
+    out.append(_align(pending))
+    return "".join(out)
+
+
+def _align(lines: list[_MathLine]) -> str:
+    if not lines:
+        return ""
+    rows = [f"  {line.left} &{line.right} && \\text{{{line.note}}}" for line in lines]
+    return "\\begin{align*}\n" + " \\\\\n".join(rows) + "\n\\end{align*}\n\n"
+
+
+def _where(step: Step) -> str:
+    return f"line {step.source.line}"
+
+
+def step_math(step: Step, digits: int) -> _MathLine | None:
+    """A step as one aligned equation, or None when it has no math form."""
+    tree, result = step.tree, step.result
+    if tree is None or result.status not in ("ok", "failed"):
+        return None
+    value = value_text(result, digits)
+    shown_value = f" = {value_latex(value)}" if value is not None else ""
+    if isinstance(tree, t.Definition):
+        right = "= " + expr_latex(tree.expr)
+        if tree.uncertainty is not None:
+            right += _uncertainty_latex(tree.uncertainty)
+        right += _symbolic(step, tree.expr) + shown_value
+        return _MathLine(name_latex(tree.name), right, _where(step))
+    if isinstance(tree, t.Display):
+        right = _symbolic(step, tree.expr, always=value is None) + shown_value
+        if not right:
+            right = "" if tree.conversion is None else " \\to " + unit_latex(tree.conversion.unit)
+        return _MathLine(expr_latex(tree.expr), right, _where(step))
+    if isinstance(tree, t.Relation):
+        params = ",\\,".join(name_latex(p) for p in tree.params)
+        left = name_latex(tree.name) + "\\left(" + params + "\\right)"
+        return _MathLine(left, "= " + expr_latex(tree.expr), _where(step))
+    if isinstance(tree, t.Declaration):
+        unit = unit_latex(tree.unit)
+        return _MathLine("\\left[" + name_latex(tree.name) + "\\right]", "= " + unit,
+                         _where(step) + ", declared without a value")
+    if isinstance(tree, t.Check):
+        return _check_math(step, tree)
+    return None
+
+
+def _uncertainty_latex(uncertainty: t.Uncertainty) -> str:
+    if uncertainty.relative is not None:
+        return " \\pm " + tolerance_latex(uncertainty.relative)
+    if uncertainty.absolute is not None:
+        return " \\pm " + expr_latex(uncertainty.absolute)
+    return ""
+
+
+def _symbolic(step: Step, expr: t.Expr, always: bool = False) -> str:
+    """The symbolic form the engine produced, when a derivation verb made it (or ``always``).
+
+    Nothing when it reads the same as the expression written.
+    """
+    symbolic = step.result.symbolic
+    if not symbolic or symbolic == to_text(expr) or not (always or written_with_verb(expr)):
+        return ""
+    try:
+        return " = " + expr_latex(parse_expression(symbolic))
+    except WorksheetError:
+        return " = " + texttt(symbolic)
+
+
+def _check_math(step: Step, tree: t.Check) -> _MathLine:
+    right = operator_latex(tree.op) + " " + expr_latex(tree.right)
+    if tree.absolute_tolerance is not None:
+        right += "\\quad\\text{within }" + expr_latex(tree.absolute_tolerance)
+    elif tree.tolerance is not None:
+        right += "\\quad\\text{within }" + tolerance_latex(tree.tolerance)
+    note = f"claim, {_where(step)}: {step.status_word}"
+    return _MathLine(expr_latex(tree.left), right, note)
+
+
+def step_text(step: Step) -> str:
+    """A step shown as sheet text: the statement, its status and what was recorded."""
+    result = step.result
+    head = f"\\noindent Line {step.source.line}: " + texttt(step.source.text, keep_spaces=False)
+    if result.kind == "check" or result.status != "ok":
+        head += " --- \\textbf{" + escape_text(step.status_word) + "}"
+    lines = result.record.split("\n") if result.record else []
+    if result.status != "ok" and result.message:
+        return head + ": " + escape_text(result.message) + "\n\n"
+    if not lines:
+        return head + "\n\n"
+    return head + "\n" + code_lines_latex(lines)
+
+
+def _claims_table(report: Report) -> str:
+    claims = report.claims
+    if not claims:
+        return ""
+    rows = []
+    for step in claims:
+        detail = step.result.message or ""
+        text = texttt(step.source.text, keep_spaces=False)
+        if detail and step.result.status != "ok":
+            text += " (" + escape_text(detail) + ")"
+        rows.append(f"{step.source.line} & {text} & {escape_text(step.status_word)} \\\\")
+    held = sum(1 for step in claims if step.result.status == "ok")
+    return (
+        "\\section*{Claims}\n\n"
+        f"{held} of {len(claims)} claims hold.\n\n"
+        "\\noindent\\begin{tabular}{r p{0.7\\linewidth} l}\n\\hline\n"
+        "Line & Claim & Status \\\\\n\\hline\n"
+        + "\n".join(rows)
+        + "\n\\hline\n\\end{tabular}\n\n"
+    )
+
+
+def _constants_table(report: Report) -> str:
+    head = ("\\section*{Constants used}\n\n" "Dataset: "
+            + escape_text(report.dataset_name + " -- " + report.dataset_title) + ".\n\n")
+    if not report.constants:
+        return head + "The sheet uses no constant of the dataset.\n\n"
+    rows = []
+    for row in report.constants:
+        if row.as_unit:
+            symbol = "\\(" + unit_text_latex(row.symbol) + "\\) (unit)"
+        else:
+            symbol = "\\(" + name_latex(row.symbol) + "\\)"
+        uncertainty = ("exact" if row.uncertainty == "exact" else
+                       "\\num{" + row.uncertainty + "}" if _is_number(row.uncertainty)
+                       else escape_text(row.uncertainty))
+        unit = unit_text_latex(row.unit)
+        rows.append(" & ".join((
+            symbol, escape_text(row.name), "\\num{" + row.value + "}", uncertainty,
+            "\\(" + unit + "\\)" if unit else "", escape_text(row.source),
+        )) + " \\\\")
+    return (
+        head
+        + "\\noindent{\\small\\begin{tabular}{l p{0.2\\linewidth} l l l p{0.22\\linewidth}}\n"
+        "\\hline\nSymbol & Name & Value & Uncertainty & Unit & Source \\\\\n\\hline\n"
+        + "\n".join(rows)
+        + "\n\\hline\n\\end{tabular}}\n\n"
+    )
+
+
+def _is_number(text: str) -> bool:
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True

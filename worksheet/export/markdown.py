@@ -1,0 +1,121 @@
+"""The Markdown report: the sheet's notes as written, each step with what it recorded, the
+claims and the constants used, in plain CommonMark with pipe tables."""
+
+from __future__ import annotations
+
+import re
+
+from worksheet.export.report import CAUTION, CellItem, NoteItem, Report, Step
+
+_SPECIAL = re.compile(r"([\\`*_{}\[\]<>#|!~&])")
+_BACKTICKS = re.compile(r"`+")
+
+
+def escape_markdown(text: str) -> str:
+    """Inline text with every Markdown-active character backslash-escaped.
+
+    >>> escape_markdown("T_H < 1e11 [K] & *x*")
+    'T\\\\_H \\\\< 1e11 \\\\[K\\\\] \\\\& \\\\*x\\\\*'
+    """
+    return _SPECIAL.sub(r"\\\1", text.replace("\n", " "))
+
+
+def code_span(text: str) -> str:
+    """Text as a code span whose fence is longer than any backtick run inside it."""
+    text = text.replace("\n", " ")
+    longest = max((len(run) for run in _BACKTICKS.findall(text)), default=0)
+    fence = "`" * (longest + 1)
+    if text.startswith(("`", " ")) or text.endswith(("`", " ")):
+        text = f" {text} "
+    return fence + text + fence
+
+
+def _cell(text: str) -> str:
+    """Escaped text for a pipe-table cell."""
+    return escape_markdown(text)
+
+
+def _code_cell(text: str) -> str:
+    return code_span(text).replace("|", "\\|")
+
+
+def markdown_document(report: Report) -> str:
+    """The whole report as Markdown text, deterministic for a given report."""
+    parts = [
+        "# " + escape_markdown(report.title) + "\n",
+        "> **Caution.** " + escape_markdown(CAUTION) + "\n",
+        _provenance(report),
+    ]
+    for item in report.items:
+        if isinstance(item, NoteItem):
+            parts.append(item.text.strip("\r\n") + "\n")
+        elif isinstance(item, CellItem):
+            parts.append(cell_markdown(item.steps))
+    parts.append(_claims_table(report))
+    parts.append(_constants_table(report))
+    return "\n".join(part for part in parts if part)
+
+
+def _provenance(report: Report) -> str:
+    lines = []
+    if report.source_name:
+        lines.append("Sheet: " + code_span(report.source_name) + ".")
+    pinned = "" if report.pinned else " (the sheet does not pin its constants; default used)"
+    lines.append("Constants: " + escape_markdown(
+        f"{report.dataset_name} – {report.dataset_title}{pinned}") + ".")
+    lines.append(f"Numbers recorded to {report.digits} significant figures.")
+    return "  \n".join(lines) + "\n"
+
+
+def cell_markdown(steps: tuple[Step, ...]) -> str:
+    """One calc cell as a list: each statement as written, then what it recorded."""
+    if not steps:
+        return ""
+    return "".join(step_markdown(step) for step in steps)
+
+
+def step_markdown(step: Step) -> str:
+    result = step.result
+    head = f"- line {step.source.line}: {code_span(step.source.text)}"
+    if result.status != "ok":
+        message = f": {escape_markdown(result.message)}" if result.message else ""
+        return f"{head} — **{step.status_word}**{message}\n"
+    if step.is_claim:
+        return f"{head} — **{step.status_word}**\n"
+    lines = result.record.split("\n") if result.record else []
+    if not lines:
+        return head + "\n"
+    if len(lines) == 1:
+        return f"{head} → {code_span(lines[0])}\n"
+    block = "".join("      " + line + "\n" for line in lines)
+    return f"{head} →\n\n{block}\n"
+
+
+def _claims_table(report: Report) -> str:
+    claims = report.claims
+    if not claims:
+        return ""
+    held = sum(1 for step in claims if step.result.status == "ok")
+    rows = []
+    for step in claims:
+        detail = ""
+        if step.result.status != "ok" and step.result.message:
+            detail = " (" + _cell(step.result.message) + ")"
+        rows.append(f"| {step.source.line} | {_code_cell(step.source.text)}{detail} | "
+                    f"{step.status_word} |\n")
+    return (f"## Claims\n\n{held} of {len(claims)} claims hold.\n\n"
+            "| Line | Claim | Status |\n|---:|---|---|\n" + "".join(rows))
+
+
+def _constants_table(report: Report) -> str:
+    head = ("## Constants used\n\nDataset: "
+            + escape_markdown(f"{report.dataset_name} – {report.dataset_title}") + ".\n")
+    if not report.constants:
+        return head + "\nThe sheet uses no constant of the dataset.\n"
+    rows = []
+    for row in report.constants:
+        symbol = _code_cell(row.symbol) + (" (unit)" if row.as_unit else "")
+        rows.append(f"| {symbol} | {_cell(row.name)} | {_cell(row.value)} | "
+                    f"{_cell(row.uncertainty)} | {_code_cell(row.unit)} | {_cell(row.source)} |\n")
+    return (head + "\n| Symbol | Name | Value | Uncertainty | Unit | Source |\n"
+            "|---|---|---|---|---|---|\n" + "".join(rows))
