@@ -1,0 +1,524 @@
+"""The worksheet app: wires key actions and widget messages to the session and the runner.
+
+No physics here: the runner computes, the session edits, the widgets show.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import dataclasses
+from collections import Counter
+from collections.abc import Iterable
+from pathlib import Path
+
+from rich.text import Text
+from textual import on, work
+from textual.app import App, ComposeResult, SystemCommand
+from textual.containers import Horizontal, Vertical
+from textual.screen import ModalScreen, Screen
+from textual.timer import Timer
+from textual.widgets import Footer, Static, TextArea
+from textual.worker import get_current_worker
+
+from worksheet.app.evaluation import RunOutcome, RunService
+from worksheet.app.keys import KEY_ACTIONS, app_bindings
+from worksheet.app.recovery import newer_recovery, remove_recovery, write_recovery
+from worksheet.app.screens.choice import ChoiceScreen
+from worksheet.app.screens.finder import ConstantFinder
+from worksheet.app.screens.help import HelpScreen
+from worksheet.app.session import SheetSession
+from worksheet.app.theme_files import (
+    FALLBACK,
+    STATE_DEFAULTS,
+    STYLESHEET,
+    load_themes,
+    read_theme_file,
+)
+from worksheet.app.widgets.calc_cell import CalcCellView
+from worksheet.app.widgets.ledger import QuantityLedger
+from worksheet.app.widgets.links import QuantityLinks
+from worksheet.app.widgets.note_cell import NoteCellView
+from worksheet.app.widgets.sheet_view import SheetView
+from worksheet.app.widgets.status_line import StatusLine
+from worksheet.constants import DEFAULT_DATASET, load_dataset
+from worksheet.document import atomic_write_text, parse_document, render_document
+from worksheet.engine import StatementResult
+from worksheet.errors import WorksheetError
+from worksheet.runner import read_settings
+
+# Actions that stay available while a dialog is open.
+DIALOG_ACTIONS = frozenset({"leave"})
+
+
+def summary(results: Iterable[StatementResult]) -> str:
+    """``5 results: 4 ok, 1 ERROR`` (status words as the result lines show them)."""
+    counts = Counter(r.status for r in results)
+    total = sum(counts.values())
+    order = ("ok", "failed", "error", "skipped", "stale")
+    parts = [f"{counts[s]} {s if s == 'ok' else s.upper()}" for s in order if counts[s]]
+    return f"{total} results: " + ", ".join(parts) if parts else "no results"
+
+
+class WorksheetApp(App[int]):
+    """The terminal app on one sheet file. Keys: see ``worksheet.app.keys``."""
+
+    TITLE = "worksheet"
+    BINDINGS = app_bindings()  # type: ignore[assignment]
+    DEBOUNCE_SECONDS = 0.3
+    RECOVERY_SECONDS = 3.0
+
+    def __init__(self, path: str, theme: str | None = None) -> None:
+        super().__init__(css_path=STYLESHEET if STYLESHEET.is_file() else None)
+        self.sheet_path = Path(path)
+        self.requested_theme = theme
+        self.service = RunService()
+        self.session: SheetSession | None = None
+        self.outcome: RunOutcome | None = None
+        self.theme_names: list[str] = []
+        self.problems: list[str] = [] if STYLESHEET.is_file() else [
+            f"the stylesheet {STYLESHEET.name} is missing; the layout is plain"]
+        self._generation = 0
+        self._run_timer: Timer | None = None
+        self._last_recovery: str | None = None
+        self._closed = False
+        self._notice = ""  # the last cell operation, kept in the status line
+
+    # ----- building the screen
+
+    def compose(self) -> ComposeResult:
+        yield Static(id="title")
+        with Horizontal(id="body"):
+            yield SheetView(id="sheet")
+            with Vertical(id="side"):
+                yield Static(Text("Quantities"), classes="panel-title")
+                yield QuantityLedger(id="ledger")
+                yield Static(Text("Links of the chosen quantity"), classes="panel-title")
+                yield QuantityLinks(id="links")
+        yield StatusLine(id="status")
+        yield Footer()
+
+    def get_theme_variable_defaults(self) -> dict[str, str]:
+        # Our state colours exist in every theme, textual's own included.
+        return {name: FALLBACK[source] for name, source in STATE_DEFAULTS.items()}
+
+    async def on_mount(self) -> None:
+        self._install_themes()
+        try:
+            self.session = SheetSession.open(self.sheet_path)
+        except WorksheetError as err:
+            self.exit(2, message=f"cannot open {self.sheet_path.name}: {err.located()}")
+            return
+        self.query_one(QuantityLinks).show(None)
+        await self._show_document(0)
+        self.set_interval(self.RECOVERY_SECONDS, self.keep_recovery)
+        if self.problems:
+            self.say("; ".join(self.problems), problem=True)
+        recovered = newer_recovery(self.sheet_path)
+        if recovered is not None:
+            self.push_screen(
+                ChoiceScreen(
+                    f"A recovery copy of {self.sheet_path.name} is newer than the sheet "
+                    "(unsaved edits from an earlier session).",
+                    [("restore", "Restore it"), ("discard", "Discard the copy"),
+                     ("later", "Decide later")],
+                    "later",
+                ),
+                lambda answer: self._recovery_answer(answer, recovered),
+            )
+
+    def _install_themes(self) -> None:
+        loaded = load_themes()
+        for theme in loaded.themes:
+            self.register_theme(theme)
+        self.theme_names = [theme.name for theme in loaded.themes]
+        self.problems.extend(loaded.problems)
+        fallback = "dark" if "dark" in self.theme_names else (
+            self.theme_names[0] if self.theme_names else "textual-dark")
+        wanted = self.requested_theme or fallback
+        if wanted not in self.theme_names:
+            candidate = Path(wanted)
+            if candidate.suffix == ".toml" or candidate.is_file():
+                try:
+                    theme = read_theme_file(candidate)
+                except WorksheetError as err:
+                    self.problems.append(f"{err.message}; using the {fallback} theme")
+                    wanted = fallback
+                else:
+                    self.register_theme(theme)
+                    self.theme_names.append(theme.name)
+                    wanted = theme.name
+            else:
+                self.problems.append(f"no theme called {wanted!r} (have "
+                                     f"{', '.join(self.theme_names)}); using {fallback}")
+                wanted = fallback
+        self.theme = wanted
+
+    # ----- helpers
+
+    @property
+    def sheet(self) -> SheetView:
+        return self.query_one(SheetView)
+
+    def say(self, message: str, problem: bool = False) -> None:
+        self.query_one(StatusLine).say(message, problem)
+
+    def _refresh_title(self) -> None:
+        if self.session is None:
+            return
+        title = self.session.doc.get("title") or self.sheet_path.name
+        mark = "  * unsaved edits" if self.session.dirty else ""
+        self.query_one("#title", Static).update(Text(f"{title}  ({self.sheet_path.name}){mark}"))
+
+    async def _show_document(self, focus: int | None) -> None:
+        """Rebuild every cell view from the session and run the sheet at once."""
+        assert self.session is not None
+        await self.sheet.rebuild(self.session.doc)
+        if focus is not None:
+            self.sheet.focus_block(focus)
+        self._refresh_title()
+        self.start_run()
+
+    @property
+    def settled(self) -> bool:
+        """No run is pending and the shown results are those of the current document."""
+        return (self.session is not None and self._run_timer is None
+                and self.outcome is not None and self.outcome.doc is self.session.doc)
+
+    def _current_block(self) -> int | None:
+        return self.sheet.current_index()
+
+    # ----- evaluation
+
+    def schedule_run(self) -> None:
+        """Run shortly after the last key (debounced)."""
+        if self._run_timer is not None:
+            self._run_timer.stop()
+        self._run_timer = self.set_timer(self.DEBOUNCE_SECONDS, self.start_run)
+
+    def start_run(self) -> None:
+        if self.session is None:
+            return
+        if self._run_timer is not None:
+            self._run_timer.stop()
+            self._run_timer = None
+        self._generation += 1
+        self.say("computing ...")
+        self._evaluate(self.session.doc, self._generation)
+
+    @work(thread=True, exclusive=True, group="evaluate", exit_on_error=False)
+    def _evaluate(self, doc: object, generation: int) -> None:
+        worker = get_current_worker()
+        outcome = self.service.run(doc, lambda: worker.is_cancelled)  # type: ignore[arg-type]
+        if outcome is None or worker.is_cancelled or self._closed:
+            return
+        # The app may have closed while the run was going on: then nobody needs the result.
+        with contextlib.suppress(RuntimeError):
+            self.call_from_thread(self.apply_outcome, outcome, generation)
+
+    def apply_outcome(self, outcome: RunOutcome, generation: int) -> None:
+        """Show one run's results, unless a newer run has started since."""
+        if generation != self._generation or self.session is None:
+            return
+        self.outcome = outcome
+        if outcome.run is None:
+            for view in self.sheet.cells():
+                if isinstance(view, CalcCellView):
+                    view.show_waiting("not computed (see the status line)")
+            self.say(f"cannot run the sheet: {outcome.problem}", problem=True)
+            return
+        self.sheet.show_run(outcome.run)
+        ledger = self.query_one(QuantityLedger)
+        ledger.show(outcome.rows)
+        chosen = ledger.chosen_name()
+        self.query_one(QuantityLinks).show(ledger.row_named(chosen) if chosen else None)
+        notes = list(outcome.run.settings.warnings)
+        state = "unsaved edits" if self.session.dirty else "saved"
+        parts = [summary(outcome.run.results), state, *notes]
+        if self._notice:
+            parts.append(self._notice)
+        self.say("  |  ".join(parts))
+        self._refresh_title()
+
+    # ----- edits inside cells
+
+    @on(CalcCellView.Edited)
+    def _calc_edited(self, event: CalcCellView.Edited) -> None:
+        if self.session is None:
+            return
+        try:
+            changed = self.session.edit_cell(event.index, event.text)
+        except WorksheetError as err:
+            self.say(f"this edit is kept on screen but not in the sheet yet: {err.located()}",
+                     problem=True)
+            return
+        if changed:
+            self._notice = ""
+            self.sheet.replace_places(self.session.doc)
+            self._refresh_title()
+            self.schedule_run()
+
+    @on(NoteCellView.Edited)
+    def _note_edited(self, event: NoteCellView.Edited) -> None:
+        if self.session is None:
+            return
+        try:
+            changed = self.session.edit_note(event.index, event.text)
+        except WorksheetError as err:
+            self.say(f"this note is kept on screen but not in the sheet yet: {err.located()}",
+                     problem=True)
+            return
+        if changed:
+            self._notice = ""
+            self.sheet.replace_places(self.session.doc)
+            self._refresh_title()
+            self.schedule_run()
+
+    @on(QuantityLedger.Chosen)
+    def _quantity_chosen(self, event: QuantityLedger.Chosen) -> None:
+        self.query_one(QuantityLinks).show(event.row)
+
+    @on(QuantityLinks.JumpTo)
+    def _jump(self, event: QuantityLinks.JumpTo) -> None:
+        if self.session is not None and not self.sheet.focus_line(self.session.doc, event.line):
+            self.say(f"line {event.line} is not in a calc cell now", problem=True)
+
+    # ----- actions
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if isinstance(self.screen, ModalScreen) and action in {k.action for k in KEY_ACTIONS}:
+            return action in DIALOG_ACTIONS
+        return True
+
+    def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
+        for key in KEY_ACTIONS:
+            yield SystemCommand(f"{key.label} ({key.key})", key.description,
+                                getattr(self, f"action_{key.action}"))
+        yield from super().get_system_commands(screen)
+
+    def action_show_help(self) -> None:
+        self.push_screen(HelpScreen())
+
+    def action_rerun(self) -> None:
+        self.start_run()
+
+    def action_next_theme(self) -> None:
+        if not self.theme_names:
+            self.say("no themes were loaded", problem=True)
+            return
+        position = self.theme_names.index(self.theme) if self.theme in self.theme_names else -1
+        self.theme = self.theme_names[(position + 1) % len(self.theme_names)]
+        self.say(f"theme: {self.theme}")
+
+    def action_switch_panel(self) -> None:
+        ledger = self.query_one(QuantityLedger)
+        if ledger.has_focus:
+            index = self._current_block()
+            self.sheet.focus_block(index if index is not None else 0)
+        else:
+            ledger.focus()
+
+    def action_find_constant(self) -> None:
+        target = self.focused if isinstance(self.focused, TextArea) else None
+        dataset_name = DEFAULT_DATASET
+        if self.session is not None:
+            with contextlib.suppress(WorksheetError):  # a bad key is reported by the run
+                dataset_name = read_settings(self.session.doc).dataset
+
+        def insert(text: str | None) -> None:
+            if text is None:
+                return
+            if target is None or not target.is_mounted:
+                self.say(f"put the cursor in a cell to insert {text}", problem=True)
+                return
+            target.focus()
+            target.insert(text)
+
+        self.push_screen(ConstantFinder(load_dataset(dataset_name)), insert)
+
+    async def action_toggle_note(self) -> None:
+        index = self._current_block()
+        views = self.sheet.cells()
+        if index is None or not isinstance(views[index], NoteCellView):
+            self.say("choose a note first (tab moves between cells)", problem=True)
+            return
+        await views[index].toggle_editing()  # type: ignore[union-attr]
+
+    async def _structural(self, change: str, focus: int | None) -> None:
+        """Rebuild after a change to the list of cells and say what happened."""
+        self._notice = change
+        await self._show_document(focus)
+        self.say(change)
+
+    async def action_add_calc(self) -> None:
+        await self._insert("calc")
+
+    async def action_add_note(self) -> None:
+        await self._insert("note")
+
+    async def _insert(self, kind: str) -> None:
+        if self.session is None:
+            return
+        index = self._current_block()
+        where = len(self.session.doc.blocks) if index is None else index + 1
+        try:
+            if kind == "calc":
+                self.session.add_calc(where)
+            else:
+                self.session.add_note(where)
+        except WorksheetError as err:
+            self.say(f"cannot add a cell here: {err.located()}", problem=True)
+            return
+        await self._structural(f"added a {kind} cell", where)
+
+    async def action_delete_cell(self) -> None:
+        index = self._current_block()
+        if self.session is None or index is None:
+            self.say("choose a cell first", problem=True)
+            return
+        try:
+            self.session.delete(index)
+        except WorksheetError as err:
+            self.say(f"cannot delete this cell: {err.located()}", problem=True)
+            return
+        await self._structural("deleted the cell (ctrl+z brings it back)", index)
+
+    async def action_move_up(self) -> None:
+        await self._move(-1)
+
+    async def action_move_down(self) -> None:
+        await self._move(1)
+
+    async def _move(self, delta: int) -> None:
+        index = self._current_block()
+        if self.session is None or index is None:
+            self.say("choose a cell first", problem=True)
+            return
+        target = index + delta
+        if not 0 <= target < len(self.session.doc.blocks):
+            self.say("the cell is already at the edge of the sheet")
+            return
+        try:
+            self.session.move(index, delta)
+        except WorksheetError as err:
+            self.say(f"cannot move this cell: {err.located()}", problem=True)
+            return
+        await self._structural("moved the cell", target)
+
+    async def action_undo(self) -> None:
+        index = self._current_block()
+        if self.session is None or not self.session.undo():
+            self.say("nothing to undo")
+            return
+        await self._structural("undone", index)
+
+    async def action_redo(self) -> None:
+        index = self._current_block()
+        if self.session is None or not self.session.redo():
+            self.say("nothing to redo")
+            return
+        await self._structural("redone", index)
+
+    # ----- files
+
+    def keep_recovery(self) -> None:
+        """Write the recovery copy when there are unsaved edits it does not hold yet."""
+        if self.session is None or not self.session.dirty:
+            return
+        text = render_document(self.session.doc)
+        if text == self._last_recovery:
+            return
+        try:
+            write_recovery(self.sheet_path, text)
+        except WorksheetError as err:
+            self.say(f"cannot keep a recovery copy: {err.located()}", problem=True)
+            return
+        self._last_recovery = text
+
+    async def _recovery_answer(self, answer: str | None, text: str) -> None:
+        if self.session is None:
+            return
+        if answer == "restore":
+            try:
+                doc = parse_document(text)
+            except WorksheetError as err:
+                self.say(f"the recovery copy cannot be read: {err.located()}", problem=True)
+                return
+            self.session.replace_all(doc)
+            await self._structural("restored the recovery copy (not saved yet)", 0)
+        elif answer == "discard":
+            remove_recovery(self.sheet_path)
+            self.say("discarded the recovery copy")
+
+    def action_save(self) -> None:
+        if self.session is not None:
+            self.say("saving ...")
+            self._save(self.session.doc, False)
+
+    @work(thread=True, group="save", exit_on_error=False)
+    def _save(self, doc: object, then_quit: bool) -> None:
+        outcome = self.service.run(doc)  # type: ignore[arg-type]
+        problem = None
+        if outcome is None or outcome.run is None:
+            problem = f"not saved: {outcome.problem if outcome else 'cancelled'}"
+        else:
+            try:
+                atomic_write_text(self.sheet_path, outcome.run.text)
+            except WorksheetError as err:
+                problem = f"not saved: {err.located()}"
+        with contextlib.suppress(RuntimeError):  # the app closed meanwhile
+            self.call_from_thread(self._saved, doc, outcome, problem, then_quit)
+
+    def _saved(self, doc: object, outcome: RunOutcome | None, problem: str | None,
+               then_quit: bool) -> None:
+        if problem is not None or outcome is None or outcome.run is None or not self.session:
+            self.say(problem or "not saved", problem=True)
+            return
+        self.session.mark_saved(doc, outcome.run.document)  # type: ignore[arg-type]
+        if self.outcome is not None and self.outcome.doc is doc:
+            self.outcome = dataclasses.replace(self.outcome, doc=self.session.doc)
+        remove_recovery(self.sheet_path)
+        self._last_recovery = None
+        self._refresh_title()
+        self.say(f"saved {self.sheet_path.name}")
+        if then_quit:
+            self.finish(0)
+
+    def action_leave(self) -> None:
+        if self.session is None or not self.session.dirty:
+            self.finish(0)
+            return
+        if isinstance(self.screen, ChoiceScreen):
+            return
+        self.push_screen(
+            ChoiceScreen("The sheet has unsaved edits.",
+                         [("save", "Save and quit"), ("discard", "Quit without saving"),
+                          ("stay", "Keep editing")], "stay"),
+            self._leave_answer,
+        )
+
+    async def action_quit(self) -> None:
+        # textual's own quit (palette, ctrl+c hint) goes through the unsaved-edits question.
+        self.action_leave()
+
+    def _leave_answer(self, answer: str | None) -> None:
+        if self.session is None:
+            return
+        if answer == "save":
+            self.say("saving ...")
+            self._save(self.session.doc, True)
+        elif answer == "discard":
+            remove_recovery(self.sheet_path)
+            self.finish(0)
+
+    def finish(self, code: int) -> None:
+        self.close_service()
+        self.exit(code)
+
+    def close_service(self) -> None:
+        """Stop the runner's worker process (idempotent)."""
+        if not self._closed:
+            self._closed = True
+            self.service.close()
+
+    def on_unmount(self) -> None:
+        self.close_service()

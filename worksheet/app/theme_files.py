@@ -1,0 +1,102 @@
+"""Colour themes read from data files (``themes/*.toml``); a broken file is an error value.
+
+A theme file holds ``name``, ``dark`` (true or false), a ``[colours]`` table with textual's
+theme colours (``primary`` required) and an optional ``[variables]`` table with the app's
+own state colours: ``result-ok``, ``result-failed``, ``result-error``, ``result-stale``.
+Missing state colours are taken from ``success``, ``error`` and ``warning``.
+"""
+
+from __future__ import annotations
+
+import tomllib
+from dataclasses import dataclass
+from pathlib import Path
+
+from textual.color import Color, ColorParseError
+from textual.theme import Theme
+
+from worksheet.errors import WorksheetError
+
+THEMES_FOLDER = Path(__file__).resolve().parents[2] / "themes"
+STYLESHEET = THEMES_FOLDER / "worksheet.tcss"
+BUILT_IN = ("dark", "light", "contrast")
+
+COLOUR_KEYS = ("primary", "secondary", "warning", "error", "success", "accent", "foreground",
+               "background", "surface", "panel", "boost")
+STATE_DEFAULTS = {"result-ok": "success", "result-failed": "error", "result-error": "error",
+                  "result-stale": "warning"}
+FALLBACK = {"success": "#4caf50", "error": "#e53935", "warning": "#ffb300"}
+
+
+@dataclass(frozen=True)
+class ThemeLoad:
+    """The themes that loaded and one message per file that did not."""
+
+    themes: tuple[Theme, ...]
+    problems: tuple[str, ...]
+
+
+def _colour(value: object, where: str) -> str:
+    if not isinstance(value, str):
+        raise WorksheetError(f"{where} must be a colour written as text")
+    try:
+        Color.parse(value)
+    except ColorParseError as err:
+        raise WorksheetError(f"{where} is not a colour: {value!r}") from err
+    return value
+
+
+def parse_theme(text: str, label: str) -> Theme:
+    """A textual Theme from a theme file's text.
+
+    Raises:
+        WorksheetError: the text is not TOML or lacks what a theme needs.
+    """
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as err:
+        raise WorksheetError(f"theme file {label} is not valid TOML: {err}") from err
+    name = data.get("name")
+    if not isinstance(name, str) or not name.strip():
+        raise WorksheetError(f"theme file {label} needs a 'name'")
+    colours = data.get("colours", {})
+    if not isinstance(colours, dict) or "primary" not in colours:
+        raise WorksheetError(f"theme file {label} needs a [colours] table with 'primary'")
+    unknown = sorted(set(colours) - set(COLOUR_KEYS))
+    if unknown:
+        raise WorksheetError(f"theme file {label}: unknown colours {', '.join(unknown)}")
+    chosen = {key: _colour(value, f"{label}: colours.{key}") for key, value in colours.items()}
+    variables = data.get("variables", {})
+    if not isinstance(variables, dict):
+        raise WorksheetError(f"theme file {label}: [variables] must be a table")
+    extra = {str(k): _colour(v, f"{label}: variables.{k}") for k, v in variables.items()}
+    for variable, source in STATE_DEFAULTS.items():
+        extra.setdefault(variable, chosen.get(source, FALLBACK[source]))
+    dark = data.get("dark", True)
+    if not isinstance(dark, bool):
+        raise WorksheetError(f"theme file {label}: 'dark' must be true or false")
+    return Theme(name=name.strip(), dark=dark, variables=extra, **chosen)
+
+
+def read_theme_file(path: Path) -> Theme:
+    """Read one theme file (raises WorksheetError when it is unreadable or broken)."""
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as err:
+        raise WorksheetError(f"cannot read theme file {path.name}: {err}") from err
+    return parse_theme(text, path.name)
+
+
+def load_themes(folder: Path = THEMES_FOLDER) -> ThemeLoad:
+    """Every ``*.toml`` theme in ``folder``, sorted by file name."""
+    themes: list[Theme] = []
+    problems: list[str] = []
+    paths = sorted(folder.glob("*.toml")) if folder.is_dir() else []
+    if not paths:
+        problems.append(f"no theme files found in the folder {folder.name}")
+    for path in paths:
+        try:
+            themes.append(read_theme_file(path))
+        except WorksheetError as err:
+            problems.append(err.message)
+    return ThemeLoad(tuple(themes), tuple(problems))

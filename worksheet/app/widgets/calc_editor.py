@@ -1,0 +1,43 @@
+"""The editor of one calc cell: a TextArea coloured by the sheet grammar."""
+
+from __future__ import annotations
+
+from textual.widgets import TextArea
+
+from worksheet.app.highlight import STYLE_OF, line_spans
+
+
+def _byte_offsets(line: str) -> list[int]:
+    """Byte offset of each character position (and of the end) in the UTF-8 line."""
+    offsets = [0]
+    for char in line:
+        offsets.append(offsets[-1] + len(char.encode("utf-8")))
+    return offsets
+
+
+class CalcEditor(TextArea):
+    """A TextArea without tree-sitter that colours numbers, [units], names, verbs, comments.
+
+    Keys are TextArea's own; tab moves focus (the sheet grammar needs no tabs).
+    """
+
+    DEFAULT_CSS = """
+    CalcEditor { height: auto; max-height: 30; }
+    """
+
+    def __init__(self, text: str, **kwargs: object) -> None:
+        super().__init__(text, tab_behavior="focus", soft_wrap=True, **kwargs)  # type: ignore[arg-type]
+
+    def _build_highlight_map(self) -> None:
+        # Textual's hook for syntax highlighting; filled from our own tokenizer.
+        self._line_cache.clear()
+        highlights = self._highlights
+        highlights.clear()
+        for row, line in enumerate(self.document.lines):
+            spans = line_spans(line)
+            if not spans:
+                continue
+            offsets = _byte_offsets(line)
+            highlights[row].extend(
+                (offsets[start], offsets[end], STYLE_OF[kind]) for start, end, kind in spans
+            )

@@ -1,0 +1,51 @@
+"""The lines the chosen quantity reads from, and the lines that read it; enter jumps there."""
+
+from __future__ import annotations
+
+from rich.text import Text
+from textual import on
+from textual.message import Message
+from textual.widgets import OptionList
+from textual.widgets.option_list import Option
+
+from worksheet.app.quantities import QuantityRow
+
+
+class QuantityLinks(OptionList):
+    """Options ``reads NAME (line N)`` and ``used on line N``; posts ``JumpTo`` on enter."""
+
+    class JumpTo(Message):
+        """Go to file line ``line``."""
+
+        def __init__(self, line: int) -> None:
+            super().__init__()
+            self.line = line
+
+    def show(self, row: QuantityRow | None) -> None:
+        self.clear_options()
+        if row is None:
+            self.add_option(Option(Text("choose a quantity in the ledger"), disabled=True))
+            return
+        value = f"{row.value} {row.unit}".strip()
+        options: list[Option] = [
+            Option(Text(f"{row.name} = {value}  ({row.dimension}; {row.origin})"), disabled=True)
+        ]
+        if row.line is not None:
+            options.append(Option(Text(f"defined on line {row.line}"), id=f"line-{row.line}"))
+        for name, line in row.reads:
+            options.append(Option(Text(f"reads {name} (line {line})"), id=f"line-{line}-{name}"))
+        if not row.reads and row.line is not None:
+            options.append(Option(Text("reads no other sheet quantity"), disabled=True))
+        for line in row.read_by:
+            options.append(Option(Text(f"used on line {line}"), id=f"used-{line}"))
+        if not row.read_by:
+            options.append(Option(Text("no line uses it"), disabled=True))
+        self.add_options(options)
+
+    @on(OptionList.OptionSelected)
+    def _selected(self, event: OptionList.OptionSelected) -> None:
+        event.stop()
+        option_id = event.option.id or ""
+        parts = option_id.split("-")
+        if len(parts) >= 2 and parts[1].isdigit():
+            self.post_message(self.JumpTo(int(parts[1])))
