@@ -6,6 +6,12 @@ from typing import TYPE_CHECKING
 
 __version__ = "0.1.0"
 
+CAUTION = (
+    "Results are estimates for research planning; verify them independently before any use "
+    "where safety, money or health is at stake."
+)
+"""The caution the command line and every standalone export carry."""
+
 if TYPE_CHECKING:
     from worksheet.runner import SheetRun
 
@@ -28,4 +34,4 @@ def check(path: str) -> bool:
     return all(r.status == "ok" for r in result.with_staleness() if r.kind != "blank")
 
 
-__all__ = ["__version__", "check", "run"]
+__all__ = ["CAUTION", "__version__", "check", "run"]

@@ -8,15 +8,11 @@ import os
 import sys
 from collections.abc import Sequence
 from pathlib import Path
-from typing import Any
 
+from worksheet import CAUTION
 from worksheet.errors import WorksheetError
 
 COMMANDS = ("open", "run", "check", "calc", "constants", "export")
-CAUTION = (
-    "Results are estimates for research planning; verify them independently before any use "
-    "where safety, money or health is at stake."
-)
 
 
 class UsageError(Exception):
@@ -282,7 +278,3 @@ def _export(args: argparse.Namespace) -> int:
     atomic_write_text(target, text)
     print(f"wrote {target}")
     return 0
-
-
-def _json_default(value: Any) -> Any:
-    return str(value)

@@ -8,7 +8,7 @@ from __future__ import annotations
 import contextlib
 import dataclasses
 from collections import Counter
-from collections.abc import Iterable
+from collections.abc import Callable, Iterable
 from pathlib import Path
 
 from rich.text import Text
@@ -75,8 +75,11 @@ class WorksheetApp(App[int]):
         self.session: SheetSession | None = None
         self.outcome: RunOutcome | None = None
         self.theme_names: list[str] = []
-        self.problems: list[str] = [] if STYLESHEET.is_file() else [
-            f"the stylesheet {STYLESHEET.name} is missing; the layout is plain"]
+        self.problems: list[str] = (
+            []
+            if STYLESHEET.is_file()
+            else [f"the stylesheet {STYLESHEET.name} is missing; the layout is plain"]
+        )
         self._generation = 0
         self._run_timer: Timer | None = None
         self._last_recovery: str | None = None
@@ -119,8 +122,11 @@ class WorksheetApp(App[int]):
                 ChoiceScreen(
                     f"A recovery copy of {self.sheet_path.name} is newer than the sheet "
                     "(unsaved edits from an earlier session).",
-                    [("restore", "Restore it"), ("discard", "Discard the copy"),
-                     ("later", "Decide later")],
+                    [
+                        ("restore", "Restore it"),
+                        ("discard", "Discard the copy"),
+                        ("later", "Decide later"),
+                    ],
                     "later",
                 ),
                 lambda answer: self._recovery_answer(answer, recovered),
@@ -132,8 +138,11 @@ class WorksheetApp(App[int]):
             self.register_theme(theme)
         self.theme_names = [theme.name for theme in loaded.themes]
         self.problems.extend(loaded.problems)
-        fallback = "dark" if "dark" in self.theme_names else (
-            self.theme_names[0] if self.theme_names else "textual-dark")
+        fallback = (
+            "dark"
+            if "dark" in self.theme_names
+            else (self.theme_names[0] if self.theme_names else "textual-dark")
+        )
         wanted = self.requested_theme or fallback
         if wanted not in self.theme_names:
             candidate = Path(wanted)
@@ -148,8 +157,10 @@ class WorksheetApp(App[int]):
                     self.theme_names.append(theme.name)
                     wanted = theme.name
             else:
-                self.problems.append(f"no theme called {wanted!r} (have "
-                                     f"{', '.join(self.theme_names)}); using {fallback}")
+                self.problems.append(
+                    f"no theme called {wanted!r} (have "
+                    f"{', '.join(self.theme_names)}); using {fallback}"
+                )
                 wanted = fallback
         self.theme = wanted
 
@@ -181,8 +192,12 @@ class WorksheetApp(App[int]):
     @property
     def settled(self) -> bool:
         """No run is pending and the shown results are those of the current document."""
-        return (self.session is not None and self._run_timer is None
-                and self.outcome is not None and self.outcome.doc is self.session.doc)
+        return (
+            self.session is not None
+            and self._run_timer is None
+            and self.outcome is not None
+            and self.outcome.doc is self.session.doc
+        )
 
     def _current_block(self) -> int | None:
         return self.sheet.current_index()
@@ -243,29 +258,25 @@ class WorksheetApp(App[int]):
 
     @on(CalcCellView.Edited)
     def _calc_edited(self, event: CalcCellView.Edited) -> None:
-        if self.session is None:
-            return
-        try:
-            changed = self.session.edit_cell(event.index, event.text)
-        except WorksheetError as err:
-            self.say(f"this edit is kept on screen but not in the sheet yet: {err.located()}",
-                     problem=True)
-            return
-        if changed:
-            self._notice = ""
-            self.sheet.replace_places(self.session.doc)
-            self._refresh_title()
-            self.schedule_run()
+        if self.session is not None:
+            self._store_edit(self.session.edit_cell, event.index, event.text, "edit")
 
     @on(NoteCellView.Edited)
     def _note_edited(self, event: NoteCellView.Edited) -> None:
-        if self.session is None:
-            return
+        if self.session is not None:
+            self._store_edit(self.session.edit_note, event.index, event.text, "note")
+
+    def _store_edit(
+        self, edit: Callable[[int, str], bool], index: int, text: str, what: str
+    ) -> None:
+        """Put a cell's new text into the sheet and schedule a run; keep it on screen if not."""
         try:
-            changed = self.session.edit_note(event.index, event.text)
+            changed = edit(index, text)
         except WorksheetError as err:
-            self.say(f"this note is kept on screen but not in the sheet yet: {err.located()}",
-                     problem=True)
+            self.say(
+                f"this {what} is kept on screen but not in the sheet yet: {err.located()}",
+                problem=True,
+            )
             return
         if changed:
             self._notice = ""
@@ -291,8 +302,9 @@ class WorksheetApp(App[int]):
 
     def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
         for key in KEY_ACTIONS:
-            yield SystemCommand(f"{key.label} ({key.key})", key.description,
-                                getattr(self, f"action_{key.action}"))
+            yield SystemCommand(
+                f"{key.label} ({key.key})", key.description, getattr(self, f"action_{key.action}")
+            )
         yield from super().get_system_commands(screen)
 
     def action_show_help(self) -> None:
@@ -468,8 +480,9 @@ class WorksheetApp(App[int]):
         with contextlib.suppress(RuntimeError):  # the app closed meanwhile
             self.call_from_thread(self._saved, doc, outcome, problem, then_quit)
 
-    def _saved(self, doc: object, outcome: RunOutcome | None, problem: str | None,
-               then_quit: bool) -> None:
+    def _saved(
+        self, doc: object, outcome: RunOutcome | None, problem: str | None, then_quit: bool
+    ) -> None:
         if problem is not None or outcome is None or outcome.run is None or not self.session:
             self.say(problem or "not saved", problem=True)
             return
@@ -490,9 +503,15 @@ class WorksheetApp(App[int]):
         if isinstance(self.screen, ChoiceScreen):
             return
         self.push_screen(
-            ChoiceScreen("The sheet has unsaved edits.",
-                         [("save", "Save and quit"), ("discard", "Quit without saving"),
-                          ("stay", "Keep editing")], "stay"),
+            ChoiceScreen(
+                "The sheet has unsaved edits.",
+                [
+                    ("save", "Save and quit"),
+                    ("discard", "Quit without saving"),
+                    ("stay", "Keep editing"),
+                ],
+                "stay",
+            ),
             self._leave_answer,
         )
 

@@ -46,14 +46,6 @@ class Context:
             self._constants = MappingProxyType(built)
         return self._constants
 
-    def value_map(self) -> dict[sympy.Symbol, float]:
-        """Numbers for every constant and unit symbol seen so far."""
-        values: dict[sympy.Symbol, float] = dict(self.unit_values)
-        for binding in self.constants.values():
-            assert binding.value is not None
-            values[binding.symbol] = binding.value
-        return values
-
 
 def make_context(
     dataset: str | None = None, digits: int = 4, seconds: float = DEFAULT_SECONDS

@@ -7,19 +7,21 @@ sheet's name without ``.md`` (``burst.sheet.md`` becomes ``burst.sheet.tex``,
 
 from __future__ import annotations
 
+from worksheet import CAUTION
 from worksheet.errors import WorksheetError
 from worksheet.export.html import html_document
 from worksheet.export.latex import latex_document
 from worksheet.export.markdown import markdown_document
-from worksheet.export.report import CAUTION, Report, build_report
+from worksheet.export.report import Report, build_report
 from worksheet.runner import SheetRun
 
 FORMATS: dict[str, str] = {"latex": ".tex", "html": ".html", "md": ".report.md"}
 """Each export format and the suffix its file gets."""
 
 
-def export_run(run: SheetRun, to: str, source_name: str | None = None,
-               standalone: bool = True) -> tuple[str, str]:
+def export_run(
+    run: SheetRun, to: str, source_name: str | None = None, standalone: bool = True
+) -> tuple[str, str]:
     """The export of a sheet run as ``(text, suffix)``.
 
     Args:

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from html import escape
 
+from worksheet import CAUTION
 from worksheet.errors import WorksheetError
 from worksheet.export.html_math import (
     expr_html,
@@ -20,7 +21,6 @@ from worksheet.export.html_math import (
 )
 from worksheet.export.notes import note_parser
 from worksheet.export.report import (
-    CAUTION,
     CellItem,
     NoteItem,
     Report,
@@ -91,8 +91,12 @@ def _provenance(report: Report) -> str:
     if report.source_name:
         lines.append("Sheet: <code>" + escape(report.source_name) + "</code>.")
     pinned = "" if report.pinned else " (the sheet does not pin its constants; default used)"
-    lines.append("Constants: " + escape(f"{report.dataset_name} – {report.dataset_title}")
-                 + escape(pinned) + ".")
+    lines.append(
+        "Constants: "
+        + escape(f"{report.dataset_name} – {report.dataset_title}")
+        + escape(pinned)
+        + "."
+    )
     lines.append(f"Numbers recorded to {report.digits} significant figures.")
     return '<p class="provenance">' + "<br>\n".join(lines) + "</p>\n"
 
@@ -112,8 +116,10 @@ def _step_row(step: Step, digits: int) -> str:
     math = step_math_html(step, digits)
     if math is not None:
         left, right, status = math
-        return (f"<tr{_row_class(step)}>{line}<td class=\"math\">{left}</td>"
-                f"<td class=\"math\">{right}</td><td class=\"status\">{status}</td></tr>\n")
+        return (
+            f'<tr{_row_class(step)}>{line}<td class="math">{left}</td>'
+            f'<td class="math">{right}</td><td class="status">{status}</td></tr>\n'
+        )
     result = step.result
     body = "<code>" + escape(step.source.text) + "</code>"
     if result.status != "ok" and result.message:
@@ -121,8 +127,10 @@ def _step_row(step: Step, digits: int) -> str:
     elif result.record:
         body += '<pre class="record">' + escape(result.record) + "</pre>"
     status = escape(step.status_word) if (result.status != "ok" or step.is_claim) else ""
-    return (f"<tr{_row_class(step)}>{line}<td colspan=\"2\">{body}</td>"
-            f"<td class=\"status\">{status}</td></tr>\n")
+    return (
+        f'<tr{_row_class(step)}>{line}<td colspan="2">{body}</td>'
+        f'<td class="status">{status}</td></tr>\n'
+    )
 
 
 def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:
@@ -147,8 +155,7 @@ def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:
         params = ", ".join(name_html(p) for p in tree.params)
         return name_html(tree.name) + "(" + params + ")", "= " + expr_html(tree.expr), ""
     if isinstance(tree, t.Declaration):
-        return ("[" + name_html(tree.name) + "]", "= " + unit_html(tree.unit),
-                "declared")
+        return ("[" + name_html(tree.name) + "]", "= " + unit_html(tree.unit), "declared")
     if isinstance(tree, t.Check):
         right = operator_html(tree.op) + " " + expr_html(tree.right)
         if tree.absolute_tolerance is not None:
@@ -190,20 +197,26 @@ def _claims_table(report: Report) -> str:
         detail = ""
         if step.result.status != "ok" and step.result.message:
             detail = " (" + escape(step.result.message) + ")"
-        rows.append(f"<tr{_row_class(step)}><td class=\"line\">{step.source.line}</td>"
-                    f"<td><code>{escape(step.source.text)}</code>{detail}</td>"
-                    f"<td class=\"status\">{escape(step.status_word)}</td></tr>\n")
+        rows.append(
+            f'<tr{_row_class(step)}><td class="line">{step.source.line}</td>'
+            f"<td><code>{escape(step.source.text)}</code>{detail}</td>"
+            f'<td class="status">{escape(step.status_word)}</td></tr>\n'
+        )
     return (
         "<h2>Claims</h2>\n"
         f"<p>{held} of {len(claims)} claims hold.</p>\n"
         '<table class="claims">\n<tr><th>Line</th><th>Claim</th><th>Status</th></tr>\n'
-        + "".join(rows) + "</table>\n"
+        + "".join(rows)
+        + "</table>\n"
     )
 
 
 def _constants_table(report: Report) -> str:
-    head = ("<h2>Constants used</h2>\n<p>Dataset: "
-            + escape(f"{report.dataset_name} – {report.dataset_title}") + ".</p>\n")
+    head = (
+        "<h2>Constants used</h2>\n<p>Dataset: "
+        + escape(f"{report.dataset_name} – {report.dataset_title}")
+        + ".</p>\n"
+    )
     if not report.constants:
         return head + "<p>The sheet uses no constant of the dataset.</p>\n"
     rows = []

@@ -11,16 +11,24 @@ from worksheet.export.report import ValueText
 from worksheet.syntax import tree as t
 from worksheet.syntax.tree import UnitExpr
 from worksheet.syntax.units import parse_unit
+from worksheet.syntax.unparse import PRECEDENCE, is_quantity, precedence
 
 MINUS = "\u2212"
 THIN = "\u2009"
-_PRECEDENCE = {"+": 1, "-": 1, "*": 2, "/": 2}
 _OPERATORS = {"==": "=", "<": "&lt;", "<=": "≤", ">": "&gt;", ">=": "≥", "~": "∼"}
 _FUNCTIONS = {"asin": "arcsin", "acos": "arccos", "atan": "arctan", "log": "ln"}
 _UNIT_SIGNS = {
-    "M_sun": "M<sub>⊙</sub>", "R_sun": "R<sub>⊙</sub>", "L_sun": "L<sub>⊙</sub>",
-    "M_earth": "M<sub>⊕</sub>", "R_earth": "R<sub>⊕</sub>", "M_jup": "M<sub>J</sub>",
-    "R_jup": "R<sub>J</sub>", "ohm": "Ω", "degC": "°C", "percent": "%", "deg": "°",
+    "M_sun": "M<sub>⊙</sub>",
+    "R_sun": "R<sub>⊙</sub>",
+    "L_sun": "L<sub>⊙</sub>",
+    "M_earth": "M<sub>⊕</sub>",
+    "R_earth": "R<sub>⊕</sub>",
+    "M_jup": "M<sub>J</sub>",
+    "R_jup": "R<sub>J</sub>",
+    "ohm": "Ω",
+    "degC": "°C",
+    "percent": "%",
+    "deg": "°",
 }
 
 
@@ -61,8 +69,11 @@ def number_html(literal: str) -> str:
 
 
 def _power(power: Fraction) -> str:
-    text = str(abs(power.numerator)) if power.denominator == 1 else (
-        f"{abs(power.numerator)}/{power.denominator}")
+    text = (
+        str(abs(power.numerator))
+        if power.denominator == 1
+        else (f"{abs(power.numerator)}/{power.denominator}")
+    )
     return (MINUS if power < 0 else "") + text
 
 
@@ -80,8 +91,11 @@ def unit_html(unit: UnitExpr) -> str:
         parts.append(text)
     body = THIN.join(parts)
     if unit.scale != 1:
-        scale = (str(unit.scale.numerator) if unit.scale.denominator == 1
-                 else f"{float(unit.scale):.15g}")
+        scale = (
+            str(unit.scale.numerator)
+            if unit.scale.denominator == 1
+            else f"{float(unit.scale):.15g}"
+        )
         body = number_html(scale) + (THIN + body if body else "")
     return '<span class="unit">' + (body or "1") + "</span>"
 
@@ -96,30 +110,18 @@ def unit_text_html(text: str | None) -> str:
         return '<span class="unit">' + escape(text) + "</span>"
 
 
-def _is_quantity(node: t.Expr) -> bool:
-    return (isinstance(node, t.BinOp) and node.op == "*" and isinstance(node.left, t.Number)
-            and isinstance(node.right, t.Unit))
-
-
-def _precedence(node: t.Expr) -> int:
-    if isinstance(node, t.BinOp):
-        return 5 if _is_quantity(node) else _PRECEDENCE[node.op]
-    if isinstance(node, t.Neg):
-        return 2
-    if isinstance(node, t.Power):
-        return 4
-    if isinstance(node, t.Equation):
-        return 0
-    return 6
-
-
 def _paren(text: str) -> str:
     return "(" + text + ")"
 
 
 def frac_html(top: str, bottom: str) -> str:
-    return ('<span class="frac"><span class="num">' + top + '</span><span class="den">'
-            + bottom + "</span></span>")
+    return (
+        '<span class="frac"><span class="num">'
+        + top
+        + '</span><span class="den">'
+        + bottom
+        + "</span></span>"
+    )
 
 
 def expr_html(node: t.Expr, inline: bool = False) -> str:
@@ -141,13 +143,14 @@ def expr_html(node: t.Expr, inline: bool = False) -> str:
         return expr_html(node.left, inline) + " = " + expr_html(node.right, inline)
     if isinstance(node, t.Neg):
         inner = expr_html(node.operand, inline)
-        if _precedence(node.operand) <= 2 and not _is_fraction(node.operand, inline):
+        if precedence(node.operand) <= 2 and not _is_fraction(node.operand, inline):
             inner = _paren(inner)
         return MINUS + inner
     if isinstance(node, t.Power):
         base = expr_html(node.base, inline)
-        if _precedence(node.base) <= 5 or (isinstance(node.base, t.Number)
-                                           and not node.base.literal.isdigit()):
+        if precedence(node.base) <= 5 or (
+            isinstance(node.base, t.Number) and not node.base.literal.isdigit()
+        ):
             base = _paren(base)
         return base + _sup(expr_html(node.exponent, inline=True))
     if isinstance(node, t.BinOp):
@@ -160,18 +163,21 @@ def _is_fraction(node: t.Expr, inline: bool) -> bool:
 
 
 def _binop_html(node: t.BinOp, inline: bool) -> str:
-    if _is_quantity(node):
+    if is_quantity(node):
         return expr_html(node.left, inline) + THIN + expr_html(node.right, inline)
     if node.op == "/" and not inline:
         return frac_html(expr_html(node.left), expr_html(node.right))
-    mine = _PRECEDENCE[node.op]
+    mine = PRECEDENCE[node.op]
     left = expr_html(node.left, inline)
-    if _precedence(node.left) < mine:
+    if precedence(node.left) < mine:
         left = _paren(left)
     right = expr_html(node.right, inline)
-    right_prec = _precedence(node.right)
-    if (right_prec < mine or isinstance(node.right, t.Neg)
-            or (right_prec == mine and node.op in "-/" and not _is_fraction(node.right, inline))):
+    right_prec = precedence(node.right)
+    if (
+        right_prec < mine
+        or isinstance(node.right, t.Neg)
+        or (right_prec == mine and node.op in "-/" and not _is_fraction(node.right, inline))
+    ):
         right = _paren(right)
     if node.op == "*":
         starts_with_number = right[:1].isdigit()
@@ -200,9 +206,26 @@ def _call_html(node: t.Call, inline: bool) -> str:
         return "lim<sub>" + args[1] + "→" + args[2] + "</sub>" + THIN + _paren(args[0])
     if func == "subs" and count == 3:
         return _paren(args[0]) + "|<sub>" + args[1] + "=" + args[2] + "</sub>"
-    if func in ("sin", "cos", "tan", "sinh", "cosh", "tanh", "exp", "ln", "log10", "min",
-                "max", "solve", "simplify", "expand", "factor", "series", "dsolve",
-                *_FUNCTIONS):
+    if func in (
+        "sin",
+        "cos",
+        "tan",
+        "sinh",
+        "cosh",
+        "tanh",
+        "exp",
+        "ln",
+        "log10",
+        "min",
+        "max",
+        "solve",
+        "simplify",
+        "expand",
+        "factor",
+        "series",
+        "dsolve",
+        *_FUNCTIONS,
+    ):
         shown = _FUNCTIONS.get(func, func)
         if shown == "log10":
             shown = "log<sub>10</sub>"
@@ -241,5 +264,3 @@ def value_html(value: ValueText) -> str:
 
 def operator_html(op: str) -> str:
     return _OPERATORS[op]
-
-

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from worksheet import CAUTION
 from worksheet.errors import WorksheetError
 from worksheet.export.latex_math import (
     expr_latex,
@@ -21,7 +22,6 @@ from worksheet.export.latex_notes import code_lines_latex, note_latex
 from worksheet.export.latex_text import escape_text, texttt
 from worksheet.export.latex_units import unit_latex, unit_text_latex
 from worksheet.export.report import (
-    CAUTION,
     CellItem,
     NoteItem,
     Report,
@@ -58,8 +58,12 @@ def latex_document(report: Report, standalone: bool = True) -> str:
     return (
         PREAMBLE
         + "\\begin{document}\n\n"
-        + "{\\centering\\LARGE " + escape_text(report.title) + "\\par}\n\n"
-        + "\\noindent\\textbf{Caution.} " + escape_text(CAUTION) + "\n\n"
+        + "{\\centering\\LARGE "
+        + escape_text(report.title)
+        + "\\par}\n\n"
+        + "\\noindent\\textbf{Caution.} "
+        + escape_text(CAUTION)
+        + "\n\n"
         + body
         + "\\end{document}\n"
     )
@@ -82,8 +86,12 @@ def _provenance(report: Report) -> str:
     if report.source_name:
         lines.append("Sheet: " + texttt(report.source_name, keep_spaces=False) + ".")
     pinned = "" if report.pinned else " (the sheet does not pin its constants; default used)"
-    lines.append("Constants: " + escape_text(report.dataset_name + " -- " + report.dataset_title)
-                 + escape_text(pinned) + ".")
+    lines.append(
+        "Constants: "
+        + escape_text(report.dataset_name + " -- " + report.dataset_title)
+        + escape_text(pinned)
+        + "."
+    )
     lines.append(f"Numbers recorded to {report.digits} significant figures.")
     return "\\noindent " + "\\\\\n".join(lines) + "\n\n"
 
@@ -139,8 +147,11 @@ def step_math(step: Step, digits: int) -> _MathLine | None:
         return _MathLine(left, "= " + expr_latex(tree.expr), _where(step))
     if isinstance(tree, t.Declaration):
         unit = unit_latex(tree.unit)
-        return _MathLine("\\left[" + name_latex(tree.name) + "\\right]", "= " + unit,
-                         _where(step) + ", declared without a value")
+        return _MathLine(
+            "\\left[" + name_latex(tree.name) + "\\right]",
+            "= " + unit,
+            _where(step) + ", declared without a value",
+        )
     if isinstance(tree, t.Check):
         return _check_math(step, tree)
     return None
@@ -208,15 +219,15 @@ def _claims_table(report: Report) -> str:
         "\\section*{Claims}\n\n"
         f"{held} of {len(claims)} claims hold.\n\n"
         "\\noindent\\begin{tabular}{r p{0.7\\linewidth} l}\n\\hline\n"
-        "Line & Claim & Status \\\\\n\\hline\n"
-        + "\n".join(rows)
-        + "\n\\hline\n\\end{tabular}\n\n"
+        "Line & Claim & Status \\\\\n\\hline\n" + "\n".join(rows) + "\n\\hline\n\\end{tabular}\n\n"
     )
 
 
 def _constants_table(report: Report) -> str:
-    head = ("\\section*{Constants used}\n\n" "Dataset: "
-            + escape_text(report.dataset_name + " -- " + report.dataset_title) + ".\n\n")
+    head = (
+        "\\section*{Constants used}\n\n"
+        "Dataset: " + escape_text(report.dataset_name + " -- " + report.dataset_title) + ".\n\n"
+    )
     if not report.constants:
         return head + "The sheet uses no constant of the dataset.\n\n"
     rows = []
@@ -225,17 +236,29 @@ def _constants_table(report: Report) -> str:
             symbol = "\\(" + unit_text_latex(row.symbol) + "\\) (unit)"
         else:
             symbol = "\\(" + name_latex(row.symbol) + "\\)"
-        uncertainty = ("exact" if row.uncertainty == "exact" else
-                       "\\num{" + row.uncertainty + "}" if _is_number(row.uncertainty)
-                       else escape_text(row.uncertainty))
+        uncertainty = (
+            "exact"
+            if row.uncertainty == "exact"
+            else "\\num{" + row.uncertainty + "}"
+            if _is_number(row.uncertainty)
+            else escape_text(row.uncertainty)
+        )
         unit = unit_text_latex(row.unit)
-        rows.append(" & ".join((
-            symbol, escape_text(row.name), "\\num{" + row.value + "}", uncertainty,
-            "\\(" + unit + "\\)" if unit else "", escape_text(row.source),
-        )) + " \\\\")
+        rows.append(
+            " & ".join(
+                (
+                    symbol,
+                    escape_text(row.name),
+                    "\\num{" + row.value + "}",
+                    uncertainty,
+                    "\\(" + unit + "\\)" if unit else "",
+                    escape_text(row.source),
+                )
+            )
+            + " \\\\"
+        )
     return (
-        head
-        + "\\noindent{\\small\\begin{tabular}{l p{0.2\\linewidth} l l l p{0.22\\linewidth}}\n"
+        head + "\\noindent{\\small\\begin{tabular}{l p{0.2\\linewidth} l l l p{0.22\\linewidth}}\n"
         "\\hline\nSymbol & Name & Value & Uncertainty & Unit & Source \\\\\n\\hline\n"
         + "\n".join(rows)
         + "\n\\hline\n\\end{tabular}}\n\n"

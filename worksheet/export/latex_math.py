@@ -8,21 +8,32 @@ from worksheet.export.latex_units import unit_body, unit_latex, unit_text_latex
 from worksheet.export.names import GREEK_MACRO, LETTER_MACRO, SOLAR_SUBSCRIPT, SPECIAL, split_name
 from worksheet.export.report import ValueText
 from worksheet.syntax import tree as t
+from worksheet.syntax.unparse import PRECEDENCE, is_quantity, precedence
 
-_PRECEDENCE = {"+": 1, "-": 1, "*": 2, "/": 2}
-_ATOM = 6
 _FUNCTIONS = {
-    "sin": "\\sin", "cos": "\\cos", "tan": "\\tan", "sinh": "\\sinh", "cosh": "\\cosh",
-    "tanh": "\\tanh", "asin": "\\arcsin", "acos": "\\arccos", "atan": "\\arctan",
-    "exp": "\\exp", "log": "\\ln", "ln": "\\ln", "log10": "\\log_{10}", "min": "\\min",
+    "sin": "\\sin",
+    "cos": "\\cos",
+    "tan": "\\tan",
+    "sinh": "\\sinh",
+    "cosh": "\\cosh",
+    "tanh": "\\tanh",
+    "asin": "\\arcsin",
+    "acos": "\\arccos",
+    "atan": "\\arctan",
+    "exp": "\\exp",
+    "log": "\\ln",
+    "ln": "\\ln",
+    "log10": "\\log_{10}",
+    "min": "\\min",
     "max": "\\max",
 }
 _OPERATORS = {"==": "=", "<": "<", "<=": "\\leq", ">": ">", ">=": "\\geq", "~": "\\sim"}
 
 
 def _mathrm_word(text: str) -> str:
-    safe = "".join(char if char.isascii() and char.isalnum() else f"\\text{{{char}}}"
-                   for char in text)
+    safe = "".join(
+        char if char.isascii() and char.isalnum() else f"\\text{{{char}}}" for char in text
+    )
     return "\\mathrm{" + safe + "}"
 
 
@@ -73,23 +84,6 @@ def number_latex(literal: str) -> str:
     return "\\num{" + literal + "}"
 
 
-def _is_quantity(node: t.Expr) -> bool:
-    return (isinstance(node, t.BinOp) and node.op == "*" and isinstance(node.left, t.Number)
-            and isinstance(node.right, t.Unit))
-
-
-def _precedence(node: t.Expr) -> int:
-    if isinstance(node, t.BinOp):
-        return 5 if _is_quantity(node) else _PRECEDENCE[node.op]
-    if isinstance(node, t.Neg):
-        return 2
-    if isinstance(node, t.Power):
-        return 4
-    if isinstance(node, t.Equation):
-        return 0
-    return _ATOM
-
-
 def _paren(text: str) -> str:
     return "\\left(" + text + "\\right)"
 
@@ -113,13 +107,13 @@ def expr_latex(node: t.Expr, inline: bool = False) -> str:
         return expr_latex(node.left, inline) + " = " + expr_latex(node.right, inline)
     if isinstance(node, t.Neg):
         inner = expr_latex(node.operand, inline)
-        if _precedence(node.operand) <= 2 and not _is_fraction(node.operand, inline):
+        if precedence(node.operand) <= 2 and not _is_fraction(node.operand, inline):
             inner = _paren(inner)
         return "-" + inner
     if isinstance(node, t.Power):
         base = expr_latex(node.base, inline)
         decimal_base = isinstance(node.base, t.Number) and not node.base.literal.isdigit()
-        if _precedence(node.base) <= 5 or decimal_base:
+        if precedence(node.base) <= 5 or decimal_base:
             base = _paren(base)
         return base + "^{" + expr_latex(node.exponent, inline=True) + "}"
     if isinstance(node, t.BinOp):
@@ -132,21 +126,24 @@ def _is_fraction(node: t.Expr, inline: bool) -> bool:
 
 
 def _binop_latex(node: t.BinOp, inline: bool) -> str:
-    if _is_quantity(node):
+    if is_quantity(node):
         assert isinstance(node.left, t.Number) and isinstance(node.right, t.Unit)
         if node.right.unit.scale == 1 and node.right.unit.factors:
             return "\\qty{" + node.left.literal + "}{" + unit_body(node.right.unit) + "}"
         return number_latex(node.left.literal) + "\\," + unit_latex(node.right.unit)
     if node.op == "/" and not inline:
         return "\\frac{" + expr_latex(node.left) + "}{" + expr_latex(node.right) + "}"
-    mine = _PRECEDENCE[node.op]
+    mine = PRECEDENCE[node.op]
     left = expr_latex(node.left, inline)
-    if _precedence(node.left) < mine:
+    if precedence(node.left) < mine:
         left = _paren(left)
     right = expr_latex(node.right, inline)
-    right_prec = _precedence(node.right)
-    if (right_prec < mine or isinstance(node.right, t.Neg)
-            or (right_prec == mine and node.op in "-/" and not _is_fraction(node.right, inline))):
+    right_prec = precedence(node.right)
+    if (
+        right_prec < mine
+        or isinstance(node.right, t.Neg)
+        or (right_prec == mine and node.op in "-/" and not _is_fraction(node.right, inline))
+    ):
         right = _paren(right)
     if node.op == "*":
         joiner = "\\cdot " if right[:1].isdigit() or right.startswith(("\\num", "\\qty")) else "\\,"
@@ -171,8 +168,9 @@ def _call_latex(node: t.Call, inline: bool) -> str:
         return _FUNCTIONS[func] + _paren(",\\,".join(args))
     if func == "diff" and count in (2, 3):
         order = "" if count == 2 else "^{" + args[2] + "}"
-        return ("\\frac{\\mathrm{d}" + order + "}{\\mathrm{d}" + args[1] + order + "}"
-                + _paren(args[0]))
+        return (
+            "\\frac{\\mathrm{d}" + order + "}{\\mathrm{d}" + args[1] + order + "}" + _paren(args[0])
+        )
     if func == "integrate" and count in (2, 4):
         limits = "" if count == 2 else "_{" + args[2] + "}^{" + args[3] + "}"
         return "\\int" + limits + args[0] + "\\,\\mathrm{d}" + args[1]
@@ -210,7 +208,7 @@ def value_latex(value: ValueText) -> str:
         number += " e" + str(value.exponent)
     unit = unit_text_latex(value.unit)
     if unit.startswith("\\unit{") and unit.endswith("}"):
-        return "\\qty{" + number + "}{" + unit[len("\\unit{"):-1] + "}"
+        return "\\qty{" + number + "}{" + unit[len("\\unit{") : -1] + "}"
     if unit:
         return "\\num{" + number + "}\\," + unit
     return "\\num{" + number + "}"

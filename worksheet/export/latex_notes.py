@@ -9,8 +9,14 @@ from markdown_it.token import Token
 from worksheet.export.latex_text import escape_text, texttt
 from worksheet.export.notes import note_parser
 
-_HEADINGS = ("section*", "subsection*", "subsubsection*", "paragraph", "subparagraph",
-             "subparagraph")
+_HEADINGS = (
+    "section*",
+    "subsection*",
+    "subsubsection*",
+    "paragraph",
+    "subparagraph",
+    "subparagraph",
+)
 _ENVIRONMENTS = {"bullet_list": "itemize", "ordered_list": "enumerate", "blockquote": "quote"}
 
 
@@ -49,7 +55,7 @@ def note_latex(text: str) -> str:
             out.append("\\noindent\\rule{\\linewidth}{0.4pt}\n\n")
         elif kind == "table_open":
             end = _closing(tokens, index, "table_close")
-            out.append(_table_latex(tokens[index + 1:end]))
+            out.append(_table_latex(tokens[index + 1 : end]))
             index = end
         elif kind == "html_block":
             out.append(escape_text(token.content) + "\n\n")

@@ -10,44 +10,124 @@ from worksheet.syntax.units import parse_unit
 
 # Symbols siunitx knows that take an SI prefix.
 _PREFIXABLE: dict[str, str] = {
-    "m": "\\metre", "g": "\\gram", "s": "\\second", "A": "\\ampere", "K": "\\kelvin",
-    "mol": "\\mole", "cd": "\\candela", "J": "\\joule", "W": "\\watt", "N": "\\newton",
-    "Pa": "\\pascal", "Hz": "\\hertz", "C": "\\coulomb", "V": "\\volt", "F": "\\farad",
-    "T": "\\tesla", "ohm": "\\ohm", "Ω": "\\ohm", "H": "\\henry", "Wb": "\\weber",
-    "S": "\\siemens", "eV": "\\electronvolt", "L": "\\litre", "l": "\\litre",
-    "Bq": "\\becquerel", "Gy": "\\gray", "Sv": "\\sievert", "lm": "\\lumen", "lx": "\\lux",
-    "kat": "\\katal", "Da": "\\dalton", "bar": "\\bar",
+    "m": "\\metre",
+    "g": "\\gram",
+    "s": "\\second",
+    "A": "\\ampere",
+    "K": "\\kelvin",
+    "mol": "\\mole",
+    "cd": "\\candela",
+    "J": "\\joule",
+    "W": "\\watt",
+    "N": "\\newton",
+    "Pa": "\\pascal",
+    "Hz": "\\hertz",
+    "C": "\\coulomb",
+    "V": "\\volt",
+    "F": "\\farad",
+    "T": "\\tesla",
+    "ohm": "\\ohm",
+    "Ω": "\\ohm",
+    "H": "\\henry",
+    "Wb": "\\weber",
+    "S": "\\siemens",
+    "eV": "\\electronvolt",
+    "L": "\\litre",
+    "l": "\\litre",
+    "Bq": "\\becquerel",
+    "Gy": "\\gray",
+    "Sv": "\\sievert",
+    "lm": "\\lumen",
+    "lx": "\\lux",
+    "kat": "\\katal",
+    "Da": "\\dalton",
+    "bar": "\\bar",
 }
 # Whole names siunitx knows (no prefix taken off them).
 _WHOLE: dict[str, str] = {
-    "min": "\\minute", "h": "\\hour", "hour": "\\hour", "day": "\\day", "d": "\\day",
-    "degC": "\\degreeCelsius", "au": "\\astronomicalunit", "percent": "\\percent",
-    "rad": "\\radian", "sr": "\\steradian", "deg": "\\degree", "degree": "\\degree",
-    "angstrom": "\\angstrom", "t": "\\tonne", "tonne": "\\tonne",
-    "metre": "\\metre", "meter": "\\metre", "second": "\\second", "gram": "\\gram",
-    "kilogram": "\\kilo\\gram", "kelvin": "\\kelvin", "joule": "\\joule", "watt": "\\watt",
-    "newton": "\\newton", "pascal": "\\pascal", "hertz": "\\hertz", "ampere": "\\ampere",
-    "coulomb": "\\coulomb", "volt": "\\volt", "mole": "\\mole", "kilometre": "\\kilo\\metre",
-    "kilometer": "\\kilo\\metre", "electronvolt": "\\electronvolt",
+    "min": "\\minute",
+    "h": "\\hour",
+    "hour": "\\hour",
+    "day": "\\day",
+    "d": "\\day",
+    "degC": "\\degreeCelsius",
+    "au": "\\astronomicalunit",
+    "percent": "\\percent",
+    "rad": "\\radian",
+    "sr": "\\steradian",
+    "deg": "\\degree",
+    "degree": "\\degree",
+    "angstrom": "\\angstrom",
+    "t": "\\tonne",
+    "tonne": "\\tonne",
+    "metre": "\\metre",
+    "meter": "\\metre",
+    "second": "\\second",
+    "gram": "\\gram",
+    "kilogram": "\\kilo\\gram",
+    "kelvin": "\\kelvin",
+    "joule": "\\joule",
+    "watt": "\\watt",
+    "newton": "\\newton",
+    "pascal": "\\pascal",
+    "hertz": "\\hertz",
+    "ampere": "\\ampere",
+    "coulomb": "\\coulomb",
+    "volt": "\\volt",
+    "mole": "\\mole",
+    "kilometre": "\\kilo\\metre",
+    "kilometer": "\\kilo\\metre",
+    "electronvolt": "\\electronvolt",
 }
 _PREFIXES: dict[str, str] = {
-    "Y": "\\yotta", "Z": "\\zetta", "E": "\\exa", "P": "\\peta", "T": "\\tera", "G": "\\giga",
-    "M": "\\mega", "k": "\\kilo", "h": "\\hecto", "da": "\\deca", "d": "\\deci",
-    "c": "\\centi", "m": "\\milli", "u": "\\micro", "µ": "\\micro", "μ": "\\micro",
-    "n": "\\nano", "p": "\\pico", "f": "\\femto", "a": "\\atto", "z": "\\zepto", "y": "\\yocto",
+    "Y": "\\yotta",
+    "Z": "\\zetta",
+    "E": "\\exa",
+    "P": "\\peta",
+    "T": "\\tera",
+    "G": "\\giga",
+    "M": "\\mega",
+    "k": "\\kilo",
+    "h": "\\hecto",
+    "da": "\\deca",
+    "d": "\\deci",
+    "c": "\\centi",
+    "m": "\\milli",
+    "u": "\\micro",
+    "µ": "\\micro",
+    "μ": "\\micro",
+    "n": "\\nano",
+    "p": "\\pico",
+    "f": "\\femto",
+    "a": "\\atto",
+    "z": "\\zepto",
+    "y": "\\yocto",
 }
 # Literal spellings for units siunitx has no macro for; astronomers' signs for solar ones.
 _LITERAL: dict[str, str] = {
-    "M_sun": "\\mathrm{M}_{\\odot}", "R_sun": "\\mathrm{R}_{\\odot}",
-    "L_sun": "\\mathrm{L}_{\\odot}", "M_earth": "\\mathrm{M}_{\\oplus}",
-    "R_earth": "\\mathrm{R}_{\\oplus}", "M_jup": "\\mathrm{M}_{\\mathrm{J}}",
+    "M_sun": "\\mathrm{M}_{\\odot}",
+    "R_sun": "\\mathrm{R}_{\\odot}",
+    "L_sun": "\\mathrm{L}_{\\odot}",
+    "M_earth": "\\mathrm{M}_{\\oplus}",
+    "R_earth": "\\mathrm{R}_{\\oplus}",
+    "M_jup": "\\mathrm{M}_{\\mathrm{J}}",
     "R_jup": "\\mathrm{R}_{\\mathrm{J}}",
 }
 # Units without a macro that commonly carry a prefix (kpc, Myr, keV is a macro already).
 _PREFIXABLE_LITERAL = ("pc", "yr", "ly", "erg", "Jy", "barn", "b")
 _LITERAL_PREFIX: dict[str, str] = {
-    "M": "M", "k": "k", "G": "G", "m": "m", "u": "\\mu{}", "µ": "\\mu{}", "μ": "\\mu{}",
-    "n": "n", "T": "T", "P": "P", "E": "E", "c": "c",
+    "M": "M",
+    "k": "k",
+    "G": "G",
+    "m": "m",
+    "u": "\\mu{}",
+    "µ": "\\mu{}",
+    "μ": "\\mu{}",
+    "n": "n",
+    "T": "T",
+    "P": "P",
+    "E": "E",
+    "c": "c",
 }
 
 
@@ -118,8 +198,10 @@ def unit_body(unit: UnitExpr) -> str:
         return ""
     macros = [_macro(name) for name, _ in unit.factors]
     if all(macro is not None for macro in macros):
-        return "".join(_macro_power(macro or "", power)
-                       for macro, (_, power) in zip(macros, unit.factors, strict=True))
+        return "".join(
+            _macro_power(macro or "", power)
+            for macro, (_, power) in zip(macros, unit.factors, strict=True)
+        )
     parts = []
     for name, power in unit.factors:
         text = _literal(name)

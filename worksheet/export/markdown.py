@@ -5,7 +5,8 @@ from __future__ import annotations
 
 import re
 
-from worksheet.export.report import CAUTION, CellItem, NoteItem, Report, Step
+from worksheet import CAUTION
+from worksheet.export.report import CellItem, NoteItem, Report, Step
 
 _SPECIAL = re.compile(r"([\\`*_{}\[\]<>#|!~&])")
 _BACKTICKS = re.compile(r"`+")
@@ -61,8 +62,11 @@ def _provenance(report: Report) -> str:
     if report.source_name:
         lines.append("Sheet: " + code_span(report.source_name) + ".")
     pinned = "" if report.pinned else " (the sheet does not pin its constants; default used)"
-    lines.append("Constants: " + escape_markdown(
-        f"{report.dataset_name} – {report.dataset_title}{pinned}") + ".")
+    lines.append(
+        "Constants: "
+        + escape_markdown(f"{report.dataset_name} – {report.dataset_title}{pinned}")
+        + "."
+    )
     lines.append(f"Numbers recorded to {report.digits} significant figures.")
     return "  \n".join(lines) + "\n"
 
@@ -101,21 +105,32 @@ def _claims_table(report: Report) -> str:
         detail = ""
         if step.result.status != "ok" and step.result.message:
             detail = " (" + _cell(step.result.message) + ")"
-        rows.append(f"| {step.source.line} | {_code_cell(step.source.text)}{detail} | "
-                    f"{step.status_word} |\n")
-    return (f"## Claims\n\n{held} of {len(claims)} claims hold.\n\n"
-            "| Line | Claim | Status |\n|---:|---|---|\n" + "".join(rows))
+        rows.append(
+            f"| {step.source.line} | {_code_cell(step.source.text)}{detail} | "
+            f"{step.status_word} |\n"
+        )
+    return (
+        f"## Claims\n\n{held} of {len(claims)} claims hold.\n\n"
+        "| Line | Claim | Status |\n|---:|---|---|\n" + "".join(rows)
+    )
 
 
 def _constants_table(report: Report) -> str:
-    head = ("## Constants used\n\nDataset: "
-            + escape_markdown(f"{report.dataset_name} – {report.dataset_title}") + ".\n")
+    head = (
+        "## Constants used\n\nDataset: "
+        + escape_markdown(f"{report.dataset_name} – {report.dataset_title}")
+        + ".\n"
+    )
     if not report.constants:
         return head + "\nThe sheet uses no constant of the dataset.\n"
     rows = []
     for row in report.constants:
         symbol = _code_cell(row.symbol) + (" (unit)" if row.as_unit else "")
-        rows.append(f"| {symbol} | {_cell(row.name)} | {_cell(row.value)} | "
-                    f"{_cell(row.uncertainty)} | {_code_cell(row.unit)} | {_cell(row.source)} |\n")
-    return (head + "\n| Symbol | Name | Value | Uncertainty | Unit | Source |\n"
-            "|---|---|---|---|---|---|\n" + "".join(rows))
+        rows.append(
+            f"| {symbol} | {_cell(row.name)} | {_cell(row.value)} | "
+            f"{_cell(row.uncertainty)} | {_code_cell(row.unit)} | {_cell(row.source)} |\n"
+        )
+    return (
+        head + "\n| Symbol | Name | Value | Uncertainty | Unit | Source |\n"
+        "|---|---|---|---|---|---|\n" + "".join(rows)
+    )

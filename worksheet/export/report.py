@@ -20,12 +20,6 @@ from worksheet.syntax import parse_statement, parse_unit
 from worksheet.syntax import tree as t
 from worksheet.syntax.tokens import Kind, tokenize
 
-CAUTION = (
-    "Results are estimates for research planning; verify them independently before any use "
-    "where safety, money or health is at stake."
-)
-"""The caution every standalone export carries (the same words as the command line's)."""
-
 STATUS_WORDS: dict[str, str] = {
     "ok": "holds",
     "failed": "fails",
@@ -36,8 +30,18 @@ STATUS_WORDS: dict[str, str] = {
 """How a claim's status is said in words (never by colour alone)."""
 
 VERBS = frozenset(
-    ("diff", "integrate", "solve", "simplify", "expand", "factor", "series", "limit",
-     "dsolve", "subs")
+    (
+        "diff",
+        "integrate",
+        "solve",
+        "simplify",
+        "expand",
+        "factor",
+        "series",
+        "limit",
+        "dsolve",
+        "subs",
+    )
 )
 """Derivation verbs: a step using one also shows the symbolic form it produced."""
 
@@ -99,8 +103,9 @@ class Report:
 
     @property
     def steps(self) -> tuple[Step, ...]:
-        return tuple(step for item in self.items if isinstance(item, CellItem)
-                     for step in item.steps)
+        return tuple(
+            step for item in self.items if isinstance(item, CellItem) for step in item.steps
+        )
 
     @property
     def claims(self) -> tuple[Step, ...]:
@@ -157,8 +162,10 @@ def value_text(result: StatementResult, digits: int) -> ValueText | None:
 def build_report(run: SheetRun, source_name: str | None = None) -> Report:
     """Gather what the exports show, in sheet order; deterministic for a given run."""
     dataset = load_dataset(run.settings.dataset)
-    steps = [Step(source, result, _parse(source)) for source, result in
-             zip(run.statements, run.results, strict=True)]
+    steps = [
+        Step(source, result, _parse(source))
+        for source, result in zip(run.statements, run.results, strict=True)
+    ]
     by_cell: dict[int, list[Step]] = {}
     for step in steps:
         by_cell.setdefault(step.source.cell, []).append(step)
@@ -223,8 +230,9 @@ def _unit_names(text: str) -> list[str]:
         return []
 
 
-def _add_constant(seen: dict[str, ConstantRow], dataset: Dataset, symbol: str,
-                  as_unit: bool) -> None:
+def _add_constant(
+    seen: dict[str, ConstantRow], dataset: Dataset, symbol: str, as_unit: bool
+) -> None:
     if symbol in seen:
         return
     constant = dataset.constants[symbol]

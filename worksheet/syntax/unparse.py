@@ -4,14 +4,24 @@ from __future__ import annotations
 
 from worksheet.syntax import tree as t
 
-_PRECEDENCE = {"+": 1, "-": 1, "*": 2, "/": 2}
+PRECEDENCE = {"+": 1, "-": 1, "*": 2, "/": 2}
+"""Binding strength of the binary operators; a quantity is 5, a power 4, an atom 6."""
 
 
-def _precedence(node: t.Expr) -> int:
+def is_quantity(node: t.Expr) -> bool:
+    """``5 [kg]``: a number with its unit, which binds tighter than any operator."""
+    return (
+        isinstance(node, t.BinOp)
+        and node.op == "*"
+        and isinstance(node.left, t.Number)
+        and isinstance(node.right, t.Unit)
+    )
+
+
+def precedence(node: t.Expr) -> int:
+    """How tightly a node binds, for deciding where a writer needs parentheses."""
     if isinstance(node, t.BinOp):
-        if node.op == "*" and isinstance(node.right, t.Unit) and isinstance(node.left, t.Number):
-            return 5
-        return _PRECEDENCE[node.op]
+        return 5 if is_quantity(node) else PRECEDENCE[node.op]
     if isinstance(node, t.Neg):
         return 2
     if isinstance(node, t.Power):
@@ -40,24 +50,24 @@ def to_text(node: t.Expr) -> str:
         return f"{to_text(node.left)} == {to_text(node.right)}"
     if isinstance(node, t.Neg):
         inner = to_text(node.operand)
-        return f"-({inner})" if _precedence(node.operand) <= 2 else f"-{inner}"
+        return f"-({inner})" if precedence(node.operand) <= 2 else f"-{inner}"
     if isinstance(node, t.Power):
         base = to_text(node.base)
-        if _precedence(node.base) <= 5:
+        if precedence(node.base) <= 5:
             base = f"({base})"
         exponent = to_text(node.exponent)
-        if _precedence(node.exponent) < 4 or isinstance(node.exponent, t.Neg):
+        if precedence(node.exponent) < 4 or isinstance(node.exponent, t.Neg):
             exponent = f"({exponent})"
         return f"{base}^{exponent}"
     if isinstance(node, t.BinOp):
-        if _precedence(node) == 5:
+        if precedence(node) == 5:
             return f"{to_text(node.left)} {to_text(node.right)}"
-        mine = _PRECEDENCE[node.op]
+        mine = PRECEDENCE[node.op]
         left = to_text(node.left)
-        if _precedence(node.left) < mine:
+        if precedence(node.left) < mine:
             left = f"({left})"
         right = to_text(node.right)
-        right_prec = _precedence(node.right)
+        right_prec = precedence(node.right)
         if right_prec < mine or (right_prec == mine and node.op in "-/"):
             right = f"({right})"
         return f"{left}{node.op}{right}" if mine == 2 else f"{left} {node.op} {right}"
