@@ -195,7 +195,7 @@ class StatementEvaluator:
         symbol = symbol_for(
             stmt.name,
             quantity.si,
-            positive_hint=None if quantity.si is not None else bool(typed.expr.is_positive),
+            positive_hint=None if quantity.si is not None else _plainly_positive(typed.expr),
         )
         binding = Binding(
             name=stmt.name,
@@ -457,20 +457,15 @@ class StatementEvaluator:
         expanded = self.translator()
         lhs = expanded.translate(stmt.left, expand=True).expr
         rhs = expanded.translate(stmt.right, expand=True).expr
-        difference = sympy.expand(lhs - rhs)
         if stmt.op == "==":
             if stmt.tolerance is not None or stmt.absolute_tolerance is not None:
                 raise EvaluationError("'within' needs numbers on both sides", stmt.line)
-            zero = difference == 0 or tr.run(ops.is_zero, (lhs - rhs,), "check", stmt.left)
+            zero = lhs == rhs or tr.run(ops.is_zero, (lhs - rhs,), "check", stmt.left)
             return bool(zero), f"{format_expr(lhs)} differs from {format_expr(rhs)}"
         if stmt.op == "~":
             raise EvaluationError("'~' needs numbers on both sides", stmt.line)
-        sign = {
-            "<": (-difference).is_positive,
-            "<=": (-difference).is_nonnegative,
-            ">": difference.is_positive,
-            ">=": difference.is_nonnegative,
-        }[stmt.op]
+        # The sign question can be as costly as any verb: ask it in the budgeted worker.
+        sign = tr.run(ops.decide_order, (lhs, rhs, stmt.op), "check", stmt.left)
         if sign is None:
             raise EvaluationError(
                 f"cannot decide {format_expr(lhs)} {stmt.op} {format_expr(rhs)} symbolically; "
@@ -478,6 +473,21 @@ class StatementEvaluator:
                 stmt.line,
             )
         return bool(sign), f"{format_expr(lhs)} {stmt.op} {format_expr(rhs)} is false"
+
+
+def _plainly_positive(expr: sympy.Expr) -> bool:
+    """Positive by its shape alone: products and rational powers of positive atoms.
+
+    A cheap stand-in for sympy's ``is_positive``, whose assumption queries can take minutes
+    on a large sum and would run outside the worker's budget.
+    """
+    if expr.is_Symbol or expr.is_Number or isinstance(expr, sympy.NumberSymbol):
+        return bool(expr.is_positive)
+    if expr.is_Mul:
+        return all(_plainly_positive(arg) for arg in expr.args)
+    if expr.is_Pow:
+        return _plainly_positive(expr.args[0]) and bool(expr.args[1].is_Rational)
+    return False
 
 
 class _Values(Mapping):

@@ -96,3 +96,14 @@ def is_zero(expr: sympy.Expr) -> bool | None:
         return True
     decided = simplified.is_zero
     return decided
+
+
+def decide_order(lhs: sympy.Expr, rhs: sympy.Expr, op: str) -> bool | None:
+    """Whether ``lhs op rhs`` holds for every allowed value of the symbols (None: undecided)."""
+    difference = sympy.expand(lhs - rhs)
+    return {
+        "<": (-difference).is_positive,
+        "<=": (-difference).is_nonnegative,
+        ">": difference.is_positive,
+        ">=": difference.is_nonnegative,
+    }[op]
