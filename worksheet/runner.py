@@ -33,6 +33,7 @@ class SheetSettings:
     seconds: float = DEFAULT_SECONDS
     pinned: bool = False
     warnings: tuple[str, ...] = ()
+    guard: bool = True
 
 
 def read_settings(doc: SheetDocument) -> SheetSettings:
@@ -75,7 +76,14 @@ def read_settings(doc: SheetDocument) -> SheetSettings:
             raise DocumentError(
                 "front matter 'budget' must be from 0.1 to 600 seconds", _key_line(doc, "budget")
             )
-    return SheetSettings(dataset, digits, seconds, pinned, tuple(warnings))
+    guard_text = (doc.get("precision_guard", "on") or "on").strip().lower()
+    if guard_text not in ("on", "off", "true", "false", "yes", "no"):
+        raise DocumentError(
+            f"front matter 'precision_guard: {guard_text}' must be on or off",
+            _key_line(doc, "precision_guard"),
+        )
+    guard = guard_text in ("on", "true", "yes")
+    return SheetSettings(dataset, digits, seconds, pinned, tuple(warnings), guard)
 
 
 def _key_line(doc: SheetDocument, key: str) -> int | None:
@@ -143,13 +151,15 @@ class SheetRunner:
     """Runs documents, keeping one evaluator per settings so re-runs are incremental."""
 
     def __init__(self) -> None:
-        self._contexts: dict[tuple[str, int, float], Context] = {}
-        self._evaluators: dict[tuple[str, int, float], SheetEvaluator] = {}
+        self._contexts: dict[tuple[str, int, float, bool], Context] = {}
+        self._evaluators: dict[tuple[str, int, float, bool], SheetEvaluator] = {}
 
     def evaluator(self, settings: SheetSettings) -> SheetEvaluator:
-        key = (settings.dataset, settings.digits, settings.seconds)
+        key = (settings.dataset, settings.digits, settings.seconds, settings.guard)
         if key not in self._evaluators:
-            context = make_context(settings.dataset, settings.digits, settings.seconds)
+            context = make_context(
+                settings.dataset, settings.digits, settings.seconds, settings.guard
+            )
             self._contexts[key] = context
             self._evaluators[key] = SheetEvaluator(context)
         return self._evaluators[key]

@@ -88,8 +88,15 @@ def test_codata2018_from_astropy(ctx2018) -> None:
 def _cli(*args: str) -> subprocess.CompletedProcess[str]:
     env = dict(os.environ)
     env["PYTHONPATH"] = str(REPO) + os.pathsep + env.get("PYTHONPATH", "")
-    return subprocess.run([sys.executable, "-m", "worksheet", *args], capture_output=True,
-                          text=True, timeout=60, cwd=REPO, env=env, check=False)
+    return subprocess.run(
+        [sys.executable, "-m", "worksheet", *args],
+        capture_output=True,
+        text=True,
+        timeout=60,
+        cwd=REPO,
+        env=env,
+        check=False,
+    )
 
 
 @pytest.mark.slow
@@ -109,11 +116,13 @@ def test_cli_constants_listing_json() -> None:
     assert g["si_value"] == sc.G
     assert g["name"] == "Newtonian constant of gravitation"  # CODATA's own wording
     # CODATA 2022: standard uncertainty 0.00015e-11.
-    assert g["uncertainty"] == pytest.approx(sc.physical_constants[
-        "Newtonian constant of gravitation"][2], rel=1e-9)
+    assert g["uncertainty"] == pytest.approx(
+        sc.physical_constants["Newtonian constant of gravitation"][2], rel=1e-9
+    )
     assert g["exact"] is False
-    assert {"symbol", "name", "value", "uncertainty", "unit", "si_value", "exact",
-            "source"} <= set(g)
+    assert {"symbol", "name", "value", "uncertainty", "unit", "si_value", "exact", "source"} <= set(
+        g
+    )
 
 
 UNIT_CASES = [

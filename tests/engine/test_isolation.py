@@ -15,8 +15,15 @@ REPO = Path(__file__).resolve().parents[2]
 def _python(code: str) -> subprocess.CompletedProcess[str]:
     env = dict(os.environ)
     env["PYTHONPATH"] = str(REPO) + os.pathsep + env.get("PYTHONPATH", "")
-    return subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                          timeout=120, cwd=REPO, env=env, check=False)
+    return subprocess.run(
+        [sys.executable, "-c", code],
+        capture_output=True,
+        text=True,
+        timeout=120,
+        cwd=REPO,
+        env=env,
+        check=False,
+    )
 
 
 @pytest.mark.slow

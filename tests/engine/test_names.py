@@ -73,11 +73,7 @@ def test_redefining_a_constant_is_an_error(run_sheet, sheet: str) -> None:
 
 
 def test_declaring_a_constant_keeps_it_symbolic(results_by_name) -> None:
-    named = results_by_name(
-        "G : [m^3/(kg*s^2)]\n"
-        "M = 1e12 [kg]\n"
-        "r_s = 2*G*M/c^2\n"
-    )
+    named = results_by_name("G : [m^3/(kg*s^2)]\nM = 1e12 [kg]\nr_s = 2*G*M/c^2\n")
     assert named["G"].status == "ok"
     assert named["G"].kind == "declaration"
     r_s = named["r_s"]

@@ -24,8 +24,22 @@ CONSTANT_NAMES = ["G", "c", "hbar", "k_B", "pi", "M_sun", "m_e", "E"]
 SHEET_NAMES = ["x", "t", "n", "y", "G", "c", "pi", "q_"]
 UNITS = ["[m]", "[s]", "[kg]", "[K]", "[km/s]", "[degC]", "[erg]", "[M_sun]", "[m^2]", "[1]"]
 NUMBERS = ["0", "1", "2", "0.5", "3.25", "1e-3", "6e23", "1e300", "1e-300", "1e400", "10", "9"]
-FUNCTIONS = ["sqrt", "exp", "log", "ln", "log10", "sin", "cos", "tan", "asin", "atan",
-             "sinh", "tanh", "abs", "f"]
+FUNCTIONS = [
+    "sqrt",
+    "exp",
+    "log",
+    "ln",
+    "log10",
+    "sin",
+    "cos",
+    "tan",
+    "asin",
+    "atan",
+    "sinh",
+    "tanh",
+    "abs",
+    "f",
+]
 BINARY = ["+", "-", "*", "/", "^", "**"]
 LIMIT_SECONDS = 20.0
 STATUSES = {"ok", "failed", "error", "skipped"}
@@ -47,14 +61,15 @@ def _leaf(names: list[str]) -> st.SearchStrategy[str]:
 
 def _extend(inner: st.SearchStrategy[str]) -> st.SearchStrategy[str]:
     """One grammar step above ``inner``: operators, functions, verbs, parentheses, signs."""
-    binary = st.tuples(inner, st.sampled_from(BINARY), inner).map(
-        lambda p: f"{p[0]} {p[1]} {p[2]}")
+    binary = st.tuples(inner, st.sampled_from(BINARY), inner).map(lambda p: f"{p[0]} {p[1]} {p[2]}")
     call = st.tuples(st.sampled_from(FUNCTIONS), inner).map(lambda p: f"{p[0]}({p[1]})")
     pair = st.tuples(st.sampled_from(["min", "max"]), inner, inner).map(
-        lambda p: f"{p[0]}({p[1]}, {p[2]})")
+        lambda p: f"{p[0]}({p[1]}, {p[2]})"
+    )
     # y is declared on the sheet; in a lone calc it is unknown, which must be an error too.
     verb = st.tuples(st.sampled_from(["diff", "integrate"]), inner).map(
-        lambda p: f"{p[0]}({p[1]}, y)")
+        lambda p: f"{p[0]}({p[1]}, y)"
+    )
     return st.one_of(
         binary,
         call,
@@ -79,8 +94,13 @@ def _assert_sound(result: StatementResult) -> None:
         assert result.value is not None
 
 
-@settings(max_examples=150, deadline=None, derandomize=True, database=None,
-          suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow])
+@settings(
+    max_examples=150,
+    deadline=None,
+    derandomize=True,
+    database=None,
+    suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow],
+)
 @given(expression=CALC_EXPRESSIONS, unit=CONVERSIONS)
 # Corners the derandomized search is not sure to reach, always tried: numbers past the double
 # range (the parser accepts decimal exponents up to 400), exact powers just past it, and an
@@ -98,8 +118,13 @@ def test_calculate_never_raises(budget_ctx: Context, expression: str, unit: str 
     _assert_sound(result)
 
 
-@settings(max_examples=60, deadline=None, derandomize=True, database=None,
-          suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow])
+@settings(
+    max_examples=60,
+    deadline=None,
+    derandomize=True,
+    database=None,
+    suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow],
+)
 @given(expressions=st.lists(SHEET_EXPRESSIONS, min_size=1, max_size=3))
 @example(expressions=["x * 1e400"])  # overflow inside a sheet, after a unit-carrying name
 def test_sheet_run_never_raises(budget_ctx: Context, expressions: list[str]) -> None:

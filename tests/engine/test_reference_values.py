@@ -152,7 +152,12 @@ def _calc_cli(*args: str) -> subprocess.CompletedProcess[str]:
     env["PYTHONPATH"] = str(REPO) + os.pathsep + env.get("PYTHONPATH", "")
     return subprocess.run(
         [sys.executable, "-m", "worksheet", "calc", *args],
-        capture_output=True, text=True, timeout=60, cwd=REPO, env=env, check=False,
+        capture_output=True,
+        text=True,
+        timeout=60,
+        cwd=REPO,
+        env=env,
+        check=False,
     )
 
 
@@ -176,8 +181,20 @@ def test_cli_calc_json_object() -> None:
     done = _calc_cli("hbar*c^3/(8*pi*G*(1 [M_sun])*k_B)", "--in", "[K]", "--json")
     assert done.returncode == 0, done.stderr
     record = json.loads(done.stdout)
-    expected_keys = {"line", "kind", "name", "text", "status", "message", "value", "unit",
-                     "si_value", "si_unit", "dimension", "symbolic"}
+    expected_keys = {
+        "line",
+        "kind",
+        "name",
+        "text",
+        "status",
+        "message",
+        "value",
+        "unit",
+        "si_value",
+        "si_unit",
+        "dimension",
+        "symbolic",
+    }
     assert expected_keys <= set(record)
     assert record["status"] == "ok"
     assert record["unit"] == "K"

@@ -47,7 +47,8 @@ def test_lifetime_integral(results_by_name, run_sheet) -> None:
     # With values: the scipy formula.
     assert named["t_1"].si_value == pytest.approx(photon_lifetime(1e12), rel=SAME_FORMULA)
     assert named["t_2"].value == pytest.approx(
-        photon_lifetime(GM_SUN / sc.G) / JULIAN_YEAR, rel=SAME_FORMULA)
+        photon_lifetime(GM_SUN / sc.G) / JULIAN_YEAR, rel=SAME_FORMULA
+    )
 
 
 DSOLVE_SHEET = """\

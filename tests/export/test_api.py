@@ -15,7 +15,10 @@ from worksheet.runner import run_text
 
 def test_suffixes(burst_run):
     assert {to: export_run(burst_run, to)[1] for to in ("latex", "html", "md")} == {
-        "latex": ".tex", "html": ".html", "md": ".report.md"}
+        "latex": ".tex",
+        "html": ".html",
+        "md": ".report.md",
+    }
     assert set(FORMATS) == {"latex", "html", "md"}
 
 
@@ -34,10 +37,15 @@ def test_constants_used_in_first_use_order_with_units_in_brackets():
         "f(G) = G^2\n"  # a relation parameter, not the constant G
         "h : [J*s]\n"  # declared by the sheet, so not the constant h
         "y = h*2\n"
-        "```\n")
+        "```\n"
+    )
     rows = build_report(run).constants
     assert [(row.symbol, row.as_unit) for row in rows] == [
-        ("M_sun", True), ("pc", True), ("m_e", False), ("c", False)]
+        ("M_sun", True),
+        ("pc", True),
+        ("m_e", False),
+        ("c", False),
+    ]
     # The dataset's own wording and provenance (IAU 2015 Resolution B3 for M_sun).
     assert rows[0].name == "solar mass"
     assert "IAU 2015 Resolution B3" in rows[0].source
@@ -60,8 +68,13 @@ def test_exports_do_not_depend_on_hash_seed(tmp_path, burst_text):
     outputs = []
     for seed in ("0", "1", "12345"):
         env = {**os.environ, "PYTHONHASHSEED": seed}
-        done = subprocess.run([sys.executable, "-c", script, str(sheet)], env=env,
-                              capture_output=True, timeout=300, check=True)
+        done = subprocess.run(
+            [sys.executable, "-c", script, str(sheet)],
+            env=env,
+            capture_output=True,
+            timeout=300,
+            check=True,
+        )
         outputs.append(done.stdout)
     assert outputs[0] == outputs[1] == outputs[2]
     assert b"\\documentclass{article}" in outputs[0]
@@ -69,8 +82,11 @@ def test_exports_do_not_depend_on_hash_seed(tmp_path, burst_text):
 
 @pytest.mark.slow
 def test_importing_the_exports_loads_no_ui_library():
-    code = ("import sys, worksheet.export\n"
-            "print(sorted(m for m in ('textual', 'rich') if m in sys.modules))")
-    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                          timeout=120, check=True)
+    code = (
+        "import sys, worksheet.export\n"
+        "print(sorted(m for m in ('textual', 'rich') if m in sys.modules))"
+    )
+    done = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, timeout=120, check=True
+    )
     assert done.stdout.strip() == "[]"

@@ -63,15 +63,22 @@ def test_names_are_typeset_with_subscripts(name, expected):
 def test_steps_values_and_claims(burst_run):
     page = _html(burst_run)
     assert '<span class="frac"><span class="num">2\u2009<var>G</var>' in page
+    # T_H for M = 5e11 kg +- 20% (scipy's constants); T_H ~ 1/(G M), so its relative
+    # uncertainty is M's 20% and G's CODATA relative uncertainty in quadrature.
     t_hawking = sc.hbar * sc.c**3 / (8 * sc.pi * sc.G * 5e11 * sc.k)
+    g_relative = sc.physical_constants["Newtonian constant of gravitation"][2] / sc.G
+    spread = t_hawking * (0.2**2 + g_relative**2) ** 0.5
     mantissa, exponent = f"{t_hawking:.3e}".split("e")
-    shown = f"{mantissa}\u2009×\u200910<sup>{int(exponent)}</sup>"
+    shown_u = f"{spread / 10 ** int(exponent):.2g}"
+    shown = f"({mantissa} ± {shown_u})\u2009×\u200910<sup>{int(exponent)}</sup>"
     assert shown + '\u2009<span class="unit">K' in page
     claims = [r for r in burst_run.results if r.kind == "check"]
     for claim in claims:
         word = {"ok": "holds", "failed": "fails"}[claim.status]
-        row = (f'<tr class="step status-{claim.status}"><td class="line">{claim.line}</td>'
-               f"<td><code>{html.escape(claim.text)}</code>")
+        row = (
+            f'<tr class="step status-{claim.status}"><td class="line">{claim.line}</td>'
+            f"<td><code>{html.escape(claim.text)}</code>"
+        )
         assert row in page
         assert f"claim {word}" in page
     assert "2 of 3 claims hold." in page
@@ -84,14 +91,17 @@ def test_every_used_constant_is_listed(burst_run):
     values = re.findall(r"<tr><td>(.*?)</td><td>(.*?)</td><td>(.*?)</td>", table)
     found = {name: float(value) for _, name, value in values}
     # Expected values from scipy.constants (equal in CODATA 2018 and 2022 for these).
-    assert found == pytest.approx({
-        "Newtonian constant of gravitation": sc.G,
-        "speed of light in vacuum": sc.c,
-        "reduced Planck constant": sc.hbar,
-        "Boltzmann constant": sc.k,
-        "Stefan-Boltzmann constant": sc.Stefan_Boltzmann,
-        "astronomical unit": sc.astronomical_unit,
-    }, rel=1e-12)
+    assert found == pytest.approx(
+        {
+            "Newtonian constant of gravitation": sc.G,
+            "speed of light in vacuum": sc.c,
+            "reduced Planck constant": sc.hbar,
+            "Boltzmann constant": sc.k,
+            "Stefan-Boltzmann constant": sc.Stefan_Boltzmann,
+            "astronomical unit": sc.astronomical_unit,
+        },
+        rel=1e-12,
+    )
     assert "Results are estimates for research planning" in page
 
 
@@ -105,11 +115,23 @@ def test_page_renders_in_a_headless_browser(tmp_path, burst_run):
     page = tmp_path / "burst.html"
     page.write_text(_html(burst_run), encoding="utf-8")
     done = subprocess.run(
-        [_chromium() or "", "--headless", "--no-sandbox", "--disable-gpu",
-         "--disable-background-networking", "--disable-component-update", "--disable-sync",
-         "--no-first-run", f"--user-data-dir={tmp_path / 'profile'}", "--dump-dom",
-         page.as_uri()],
-        capture_output=True, text=True, timeout=120, check=False,
+        [
+            _chromium() or "",
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+            "--no-first-run",
+            f"--user-data-dir={tmp_path / 'profile'}",
+            "--dump-dom",
+            page.as_uri(),
+        ],
+        capture_output=True,
+        text=True,
+        timeout=120,
+        check=False,
     )
     assert done.returncode == 0, done.stderr[-2000:]
     dom = done.stdout

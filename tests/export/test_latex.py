@@ -54,10 +54,15 @@ def test_steps_are_typeset_as_written_then_valued(burst_run):
     assert "M &= \\qty{5e11}{\\kilo\\gram} \\pm \\qty{20}{\\percent}" in text
     assert "\\qty{5.000 \\pm 1.0 e11}{\\kilo\\gram}" in text
     assert "\\frac{\\hbar\\,c^{3}}{8\\,\\pi\\,G\\,M\\,k_{\\mathrm{B}}}" in text
-    # T_H for M = 5e11 kg from scipy's constants, to the sheet's 4 significant figures.
+    # T_H for M = 5e11 kg from scipy's constants, to the sheet's 4 significant figures, with
+    # its first-order uncertainty: T_H ~ 1/(G M), so the relative u is M's 20% and G's
+    # CODATA relative u added in quadrature.
     t_hawking = sc.hbar * sc.c**3 / (8 * sc.pi * sc.G * 5e11 * sc.k)
+    g_relative = sc.physical_constants["Newtonian constant of gravitation"][2] / sc.G
+    spread = t_hawking * (0.2**2 + g_relative**2) ** 0.5
     mantissa, exponent = f"{t_hawking:.3e}".split("e")
-    assert f"\\qty{{{mantissa} e{int(exponent)}}}{{\\kelvin}}" in text
+    shown_u = f"{spread / 10 ** int(exponent):.2g}"
+    assert f"\\qty{{{mantissa} \\pm {shown_u} e{int(exponent)}}}{{\\kelvin}}" in text
     # A derivation verb shows the form it produced.
     assert "\\frac{\\mathrm{d}}{\\mathrm{d}x}\\left(x^{3}\\right) & = 3\\,x^{2}" in text
     # A unit without a siunitx macro is written literally; au has one.
@@ -86,8 +91,9 @@ def _constant_rows(text: str) -> dict[str, str]:
     """Symbol cell -> value of the constants table rows."""
     table = text.split("\\section*{Constants used}", 1)[1]
     rows = {}
-    for match in re.finditer(r"^\\\((.+?)\\\)(?: \(unit\))? & .*? & \\num\{([^}]*)\}", table,
-                             re.MULTILINE):
+    for match in re.finditer(
+        r"^\\\((.+?)\\\)(?: \(unit\))? & .*? & \\num\{([^}]*)\}", table, re.MULTILINE
+    ):
         rows[match.group(1)] = match.group(2)
     return rows
 
@@ -97,7 +103,10 @@ def test_every_used_constant_is_listed_with_its_published_value(burst_run):
     rows = _constant_rows(text)
     # Expected values from scipy.constants (CODATA 2022; these five are equal in 2018).
     expected = {
-        "G": sc.G, "c": sc.c, "\\hbar": sc.hbar, "k_{\\mathrm{B}}": sc.k,
+        "G": sc.G,
+        "c": sc.c,
+        "\\hbar": sc.hbar,
+        "k_{\\mathrm{B}}": sc.k,
         "\\sigma_{\\mathrm{SB}}": sc.Stefan_Boltzmann,
         # IAU 2012 Resolution B2: the astronomical unit is 149597870700 m exactly.
         "\\unit{\\astronomicalunit}": sc.astronomical_unit,
@@ -111,8 +120,10 @@ def test_every_used_constant_is_listed_with_its_published_value(burst_run):
 
 
 def test_declared_names_are_not_listed_as_constants():
-    run = run_text("---\nconstants: CODATA2022\n---\n\n```calc\nG : [m^3/(kg*s^2)]\n"
-                   "g(c) = c^2\ny = 3 [m]\n```\n")
+    run = run_text(
+        "---\nconstants: CODATA2022\n---\n\n```calc\nG : [m^3/(kg*s^2)]\n"
+        "g(c) = c^2\ny = 3 [m]\n```\n"
+    )
     rows = _constant_rows(_latex(run))
     assert rows == {}
     assert "The sheet uses no constant of the dataset." in _latex(run)
@@ -122,14 +133,20 @@ def test_special_characters_in_notes_and_title_are_escaped(hostile_run):
     text = _latex(hostile_run)
     assert "Costs 100\\% of T\\_H \\& \\#1 \\{braces\\} \\$dollars\\$" in text
     assert "\\textasciitilde{}tilde \\textasciicircum{}caret \\textbackslash{}backslash" in text
-    assert ("Odd \\textless{}b\\textgreater{}title\\textless{}/b\\textgreater{} "
-            "\\& 100\\% No.\\#1") in text
-    assert ("\\item a list item with "
-            "\\texttt{code\\_span \\& \\textless{}tag\\textgreater{}}") in text
+    assert (
+        "Odd \\textless{}b\\textgreater{}title\\textless{}/b\\textgreater{} \\& 100\\% No.\\#1"
+    ) in text
+    assert (
+        "\\item a list item with \\texttt{code\\_span \\& \\textless{}tag\\textgreater{}}"
+    ) in text
     # No special character survives unescaped in the note's paragraph.
     paragraph = next(line for line in text.splitlines() if line.startswith("Costs"))
-    assert re.search(r"(?<!\\)[%#&$_{}]", paragraph.replace("{}", "")
-                     .replace("\\{", "").replace("\\}", "")) is None
+    assert (
+        re.search(
+            r"(?<!\\)[%#&$_{}]", paragraph.replace("{}", "").replace("\\{", "").replace("\\}", "")
+        )
+        is None
+    )
 
 
 def test_standalone_document_and_fragment(burst_run):
@@ -154,15 +171,19 @@ def _compile(tmp_path, name: str, source: str) -> subprocess.CompletedProcess:
     assert engine is not None
     (tmp_path / f"{name}.tex").write_text(source, encoding="utf-8")
     return subprocess.run(
-        [engine, "-interaction=nonstopmode", "-halt-on-error", "-no-shell-escape",
-         f"{name}.tex"],
-        cwd=tmp_path, capture_output=True, text=True, timeout=300, check=False,
+        [engine, "-interaction=nonstopmode", "-halt-on-error", "-no-shell-escape", f"{name}.tex"],
+        cwd=tmp_path,
+        capture_output=True,
+        text=True,
+        timeout=300,
+        check=False,
     )
 
 
 @pytest.mark.slow
-@pytest.mark.skipif(_tex_engine() is None,
-                    reason="no pdflatex or lualatex on PATH (install TeX Live to run this)")
+@pytest.mark.skipif(
+    _tex_engine() is None, reason="no pdflatex or lualatex on PATH (install TeX Live to run this)"
+)
 @pytest.mark.parametrize("which", ["burst", "hostile"])
 def test_standalone_document_compiles(tmp_path, burst_run, hostile_run, which):
     run = burst_run if which == "burst" else hostile_run
@@ -172,12 +193,15 @@ def test_standalone_document_compiles(tmp_path, burst_run, hostile_run, which):
 
 
 @pytest.mark.slow
-@pytest.mark.skipif(_tex_engine() is None,
-                    reason="no pdflatex or lualatex on PATH (install TeX Live to run this)")
+@pytest.mark.skipif(
+    _tex_engine() is None, reason="no pdflatex or lualatex on PATH (install TeX Live to run this)"
+)
 def test_fragment_compiles_inside_a_host_document(tmp_path, burst_run):
     (tmp_path / "part.tex").write_text(_latex(burst_run, standalone=False), encoding="utf-8")
-    host = ("\\documentclass{article}\n\\usepackage[T1]{fontenc}\n"
-            "\\usepackage{amsmath,amssymb,siunitx}\n"
-            "\\begin{document}\n\\input{part}\n\\end{document}\n")
+    host = (
+        "\\documentclass{article}\n\\usepackage[T1]{fontenc}\n"
+        "\\usepackage{amsmath,amssymb,siunitx}\n"
+        "\\begin{document}\n\\input{part}\n\\end{document}\n"
+    )
     done = _compile(tmp_path, "host", host)
     assert done.returncode == 0, done.stdout[-3000:]

@@ -60,10 +60,17 @@ def test_constants_table_parses_with_published_values(burst_run):
     rows = _table_rows(_md(burst_run), "## Constants used")
     found = {row[0]: float(row[2]) for row in rows}
     # Expected values from scipy.constants (equal in CODATA 2018 and 2022 for these).
-    assert found == pytest.approx({
-        "G": sc.G, "c": sc.c, "hbar": sc.hbar, "k_B": sc.k, "sigma_SB": sc.Stefan_Boltzmann,
-        "au (unit)": sc.astronomical_unit,
-    }, rel=1e-12)
+    assert found == pytest.approx(
+        {
+            "G": sc.G,
+            "c": sc.c,
+            "hbar": sc.hbar,
+            "k_B": sc.k,
+            "sigma_SB": sc.Stefan_Boltzmann,
+            "au (unit)": sc.astronomical_unit,
+        },
+        rel=1e-12,
+    )
 
 
 def test_title_is_escaped(hostile_run):
@@ -92,4 +99,5 @@ def test_code_spans(text, expected):
 def test_escape_markdown_round_trips_through_a_renderer():
     text = "T_H * 2 < [x](y) & #1 |pipe|"
     assert MarkdownIt("commonmark").renderInline(escape_markdown(text)) == (
-        "T_H * 2 &lt; [x](y) &amp; #1 |pipe|")
+        "T_H * 2 &lt; [x](y) &amp; #1 |pipe|"
+    )

@@ -9,6 +9,7 @@ import sys
 from pathlib import Path
 
 import pytest
+import scipy.constants as sc
 
 ROOT = Path(__file__).resolve().parents[2]
 SHEETS = sorted((ROOT / "sheets").glob("*.sheet.md"))
@@ -28,6 +29,17 @@ T_H = hbar*c^3/(8*pi*G*M*k_B) in [K]
 check T_H ~ 1e11 [K]
 ```
 """.format(prose="Some prose with ħ and tabs\t and trailing spaces   ")
+
+
+def _two_figures(x: float) -> str:
+    mantissa, exponent = f"{x:.1e}".split("e")
+    return f"{mantissa}e{int(exponent)}"
+
+
+_G_RELATIVE = sc.physical_constants["Newtonian constant of gravitation"][2] / sc.G
+# Expected first-order uncertainties for M = 5e11 kg, from scipy's CODATA 2022 values.
+RS_U = _two_figures(2 * sc.G * 5e11 / sc.c**2 * _G_RELATIVE)
+TH_U = _two_figures(sc.hbar * sc.c**3 / (8 * sc.pi * sc.G * 5e11 * sc.k) * _G_RELATIVE)
 
 
 def cli(*args: str, env: dict[str, str] | None = None, cwd: Path | None = None):
@@ -55,7 +67,11 @@ def test_run_writes_results_then_check_passes(small: Path) -> None:
     done = cli("run", str(small))
     assert done.returncode == 0, done.stdout + done.stderr
     text = small.read_text(encoding="utf-8")
-    assert "```result\nM = 5.000e11 kg\nr_s = 7.426e-16 m\nT_H = 2.454e11 K\n" in text
+    # r_s ~ G and T_H ~ 1/G carry G's CODATA relative uncertainty (scipy.constants).
+    assert (
+        f"```result\nM = 5.000e11 kg\nr_s = 7.426e-16 +- {RS_U} m\nT_H = 2.454e11 +- {TH_U} K\n"
+        in text
+    )
     assert "check T_H ~ 1e11 [K]: holds" in text
     # Notes survive byte for byte, including the tab and trailing spaces.
     assert "Some prose with ħ and tabs\t and trailing spaces   \n" in text
@@ -78,13 +94,14 @@ def test_determinism_across_hash_seeds(tmp_path: Path) -> None:
 @pytest.mark.slow
 def test_stale_result_is_reported_with_both_values(small: Path) -> None:
     assert cli("run", str(small)).returncode == 0
-    edited = small.read_text(encoding="utf-8").replace("T_H = 2.454e11 K", "T_H = 9.999e11 K")
+    recomputed = f"T_H = 2.454e11 +- {TH_U} K"
+    edited = small.read_text(encoding="utf-8").replace(recomputed, "T_H = 9.999e11 K")
     small.write_text(edited, encoding="utf-8")
     done = cli("check", str(small))
     assert done.returncode == 1
     assert "stale" in done.stdout
     assert "recorded: T_H = 9.999e11 K" in done.stdout
-    assert "recomputed: T_H = 2.454e11 K" in done.stdout
+    assert f"recomputed: {recomputed}" in done.stdout
     assert small.read_text(encoding="utf-8") == edited  # check writes nothing
 
 

@@ -6,7 +6,7 @@ import itertools
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from enum import Enum
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 import sympy
 
@@ -42,6 +42,9 @@ class Binding:
     deps: tuple[str, ...] = ()
     value: float | None = None  # SI
     uncertainty: float | None = None  # SI, standard, first order
+    input_uncertainty: float | None = None  # SI; set when the sheet states it (+- ...)
+    gradient: dict[str, float] = field(default_factory=dict)  # d value / d input, by input
+    precise: Any = None  # the value at high precision (mpmath), for the precision guard
     display_unit: ResolvedUnit | None = None
     source: str = ""  # dataset source for constants
     params: tuple[str, ...] = ()  # relations only

@@ -23,6 +23,7 @@ class Context:
     registry: UnitRegistry
     digits: int = 4
     seconds: float = DEFAULT_SECONDS
+    guard: bool = True  # the precision guard (SPEC section 8)
     worker: Worker = field(default_factory=Worker)
     unit_values: dict[sympy.Symbol, float] = field(default_factory=dict)
     _constants: Mapping[str, Binding] | None = None
@@ -48,8 +49,11 @@ class Context:
 
 
 def make_context(
-    dataset: str | None = None, digits: int = 4, seconds: float = DEFAULT_SECONDS
+    dataset: str | None = None,
+    digits: int = 4,
+    seconds: float = DEFAULT_SECONDS,
+    guard: bool = True,
 ) -> Context:
     """A context for a dataset name (default: the newest CODATA)."""
     data = load_dataset(dataset or DEFAULT_DATASET)
-    return Context(data, UnitRegistry(data), digits=digits, seconds=seconds)
+    return Context(data, UnitRegistry(data), digits=digits, seconds=seconds, guard=guard)

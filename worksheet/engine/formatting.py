@@ -38,6 +38,29 @@ def format_number(value: float, digits: int = 4) -> str:
     return f"{mantissa}e{exponent}"
 
 
+def format_precise(value: object, digits: int = 4) -> str:
+    """An mpmath number (possibly beyond the double range) in the same notation.
+
+    >>> import mpmath
+    >>> format_precise(mpmath.mpf(10) ** 434 * 1.97, 4)
+    '1.970e434'
+    """
+    from decimal import Decimal
+
+    import mpmath
+
+    text = mpmath.nstr(value, 30, strip_zeros=False, min_fixed=1, max_fixed=0)
+    number = Decimal(text.replace("e+", "e"))
+    if number == 0:
+        return "0"
+    digits = max(1, min(int(digits), 17))
+    mantissa, exponent_text = f"{number:.{digits - 1}e}".split("e")
+    exponent = int(exponent_text)
+    if -3 <= exponent <= digits - 1:
+        return f"{number:.{max(digits - 1 - exponent, 0)}f}"
+    return f"{mantissa}e{exponent}"
+
+
 def format_uncertainty(value: float) -> str:
     """A standard uncertainty to two significant figures, in the same notation."""
     return format_number(value, 2)
@@ -60,6 +83,15 @@ class _SheetPrinter(StrPrinter):
 
     def _print_Max(self, expr: sympy.Max) -> str:
         return "max(" + ", ".join(self._print(a) for a in expr.args) + ")"
+
+    def _print_Integer(self, expr: sympy.Integer) -> str:
+        """Long round numbers as the sheet writes them: 10^400 is ``1e400`` (still exact)."""
+        value = int(expr)
+        text = str(abs(value))
+        zeros = len(text) - len(text.rstrip("0"))
+        if zeros >= 6:
+            return ("-" if value < 0 else "") + f"{text[:-zeros]}e{zeros}"
+        return str(value)
 
     def _print_Exp1(self, expr: sympy.Expr) -> str:
         return "exp(1)"

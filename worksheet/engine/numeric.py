@@ -155,7 +155,16 @@ class MpBackend(Backend):
             return self.mp.e
         return self.mp.mpf(str(value))
 
+    def _bounded(self, bits: Any) -> None:
+        """Refuse results beyond 2^MAX_BITS before mpmath builds a huge integer for them."""
+        if abs(bits) > self.MAX_BITS:
+            raise EvaluationError("a value far outside any recordable range (beyond 10^30000)")
+
+    MAX_BITS = 100_000
+
     def power(self, base: Any, exponent: Any) -> Any:
+        if base != 0 and exponent != 0:
+            self._bounded(exponent * self.mp.mag(base))
         result = self.mp.power(base, exponent)
         if isinstance(result, self.mpmath.mpc):
             raise EvaluationError("a power is not a real number")
@@ -163,8 +172,16 @@ class MpBackend(Backend):
 
     def functions(self) -> Mapping[type, Any]:
         mp = self.mp
+
+        def growing(function):
+            def apply(x: Any) -> Any:
+                self._bounded(x * 1.4427)  # e^x = 2^(x / ln 2)
+                return function(x)
+
+            return apply
+
         return {
-            sympy.exp: mp.exp,
+            sympy.exp: growing(mp.exp),
             sympy.log: mp.log,
             sympy.sin: mp.sin,
             sympy.cos: mp.cos,
@@ -172,8 +189,8 @@ class MpBackend(Backend):
             sympy.asin: mp.asin,
             sympy.acos: mp.acos,
             sympy.atan: mp.atan,
-            sympy.sinh: mp.sinh,
-            sympy.cosh: mp.cosh,
+            sympy.sinh: growing(mp.sinh),
+            sympy.cosh: growing(mp.cosh),
             sympy.tanh: mp.tanh,
             sympy.Abs: abs,
             sympy.Min: min,
@@ -233,3 +250,97 @@ def evaluate(expr: sympy.Expr, values: Mapping[sympy.Symbol, Any], backend: Back
         return result
 
     return walk(expr)
+
+
+class Dual:
+    """A value with its first partial derivatives (forward-mode differentiation).
+
+    ``grad`` maps an input's key to d(value)/d(input): exact derivatives of the expression,
+    evaluated in floating point, for first-order uncertainty propagation.
+    """
+
+    __slots__ = ("grad", "value")
+
+    def __init__(self, value: float, grad: dict[Any, float] | None = None):
+        self.value = value
+        self.grad = grad or {}
+
+    def scaled(self, factor: float, value: float) -> Dual:
+        return Dual(value, {key: factor * d for key, d in self.grad.items()})
+
+
+def _combine(value: float, *parts: tuple[float, Dual]) -> Dual:
+    grad: dict[Any, float] = {}
+    for factor, dual in parts:
+        for key, d in dual.grad.items():
+            grad[key] = grad.get(key, 0.0) + factor * d
+    return Dual(value, grad)
+
+
+class DualBackend(Backend):
+    """Floats with partial derivatives, for propagating standard uncertainties."""
+
+    name = "dual"
+
+    def number(self, value: sympy.Expr) -> Any:
+        return Dual(super().number(value))
+
+    def add(self, items: list[Any]) -> Any:
+        return _combine(math.fsum(i.value for i in items), *((1.0, i) for i in items))
+
+    def multiply(self, items: list[Any]) -> Any:
+        result = items[0]
+        for item in items[1:]:
+            result = _combine(result.value * item.value, (item.value, result), (result.value, item))
+        return result
+
+    def power(self, base: Any, exponent: Any) -> Any:
+        value = super().power(base.value, exponent.value)
+        parts = []
+        if base.grad:
+            if base.value == 0:
+                slope = 0.0 if exponent.value > 1 else math.inf
+            else:
+                slope = exponent.value * value / base.value
+            parts.append((slope, base))
+        if exponent.grad:
+            if base.value <= 0:
+                raise EvaluationError("an uncertain exponent needs a positive base")
+            parts.append((value * math.log(base.value), exponent))
+        return _combine(value, *parts)
+
+    def functions(self) -> Mapping[type, Any]:
+        plain = FLOAT.functions()
+
+        def unary(function, derivative):
+            def apply(x: Dual) -> Dual:
+                value = plain[function](x.value)
+                return x.scaled(derivative(x.value, value), value) if x.grad else Dual(value)
+
+            return apply
+
+        def pick(chooser):
+            def apply(*args: Dual) -> Dual:
+                return chooser(args, key=lambda d: d.value)
+
+            return apply
+
+        return {
+            sympy.exp: unary(sympy.exp, lambda x, y: y),
+            sympy.log: unary(sympy.log, lambda x, y: 1 / x),
+            sympy.sin: unary(sympy.sin, lambda x, y: math.cos(x)),
+            sympy.cos: unary(sympy.cos, lambda x, y: -math.sin(x)),
+            sympy.tan: unary(sympy.tan, lambda x, y: 1 + y * y),
+            sympy.asin: unary(sympy.asin, lambda x, y: 1 / math.sqrt(1 - x * x)),
+            sympy.acos: unary(sympy.acos, lambda x, y: -1 / math.sqrt(1 - x * x)),
+            sympy.atan: unary(sympy.atan, lambda x, y: 1 / (1 + x * x)),
+            sympy.sinh: unary(sympy.sinh, lambda x, y: math.cosh(x)),
+            sympy.cosh: unary(sympy.cosh, lambda x, y: math.sinh(x)),
+            sympy.tanh: unary(sympy.tanh, lambda x, y: 1 - y * y),
+            sympy.Abs: unary(sympy.Abs, lambda x, y: 1.0 if x >= 0 else -1.0),
+            sympy.Min: pick(min),
+            sympy.Max: pick(max),
+        }
+
+
+DUAL = DualBackend()

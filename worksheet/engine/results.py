@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import asdict, dataclass
 from typing import Any
 
@@ -27,12 +28,20 @@ class StatementResult:
     symbolic: str | None = None
     uncertainty: float | None = None
     record: str | None = None
+    precision: str | None = None  # set when the precision guard found a loss: why
 
     def to_json(self) -> dict[str, Any]:
         data = asdict(self)
         data.pop("record")
         if data["uncertainty"] is None:
             data.pop("uncertainty")
+        precision = data.pop("precision")
+        if precision is not None:
+            data["precision_loss"] = precision
+        for key in ("value", "si_value", "uncertainty"):
+            number = data.get(key)
+            if isinstance(number, float) and not math.isfinite(number):
+                data[key] = None  # JSON has no infinity; the record keeps the exact text
         return data
 
     @property

@@ -83,7 +83,7 @@ class _RunState:
     first_definer: dict[str, int]
     visible: dict[str, Binding]
     failed: dict[str, int]
-    values: dict[sympy.Symbol, float | None]
+    values: dict[sympy.Symbol, Binding]
     users: dict[str, list[int]]
     lookup: Callable[[str], Binding | None]
     evaluator: StatementEvaluator
@@ -168,7 +168,7 @@ class SheetEvaluator:
 
         visible: dict[str, Binding] = {}
         failed: dict[str, int] = {}  # name -> line of the failed definition
-        values: dict[sympy.Symbol, float | None] = {}
+        values: dict[sympy.Symbol, Binding] = {}
         constants = self.ctx.constants
 
         def lookup(name: str) -> Binding | None:
@@ -186,8 +186,7 @@ class SheetEvaluator:
             if slot.defines is not None:
                 if binding is not None and first_definer.get(slot.defines) == index:
                     visible[slot.defines] = binding
-                    if binding.value is not None or slot.defines in constants:
-                        values[binding.symbol] = binding.value
+                    values[binding.symbol] = binding
                 elif first_definer.get(slot.defines) == index:
                     failed[slot.defines] = slot.source.line
         users: dict[str, list[int]] = {}
@@ -250,8 +249,7 @@ class SheetEvaluator:
                 if binding is not None:
                     state.visible[name] = binding
                     state.failed.pop(name, None)
-                    if binding.value is not None or name in self.ctx.constants:
-                        state.values[binding.symbol] = binding.value
+                    state.values[binding.symbol] = binding
                 else:
                     state.visible.pop(name, None)
                     state.failed[name] = slot.source.line

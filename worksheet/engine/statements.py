@@ -12,8 +12,18 @@ import sympy
 from worksheet.engine import symbolic_ops as ops
 from worksheet.engine.bindings import Binding, Origin, symbol_for, unit_symbol
 from worksheet.engine.context import Context
-from worksheet.engine.formatting import format_expr, format_number, format_uncertainty
-from worksheet.engine.numeric import MissingValue, evaluate
+from worksheet.engine.figures import (
+    Figures,
+    compute_figures,
+    in_unit_uncertainty,
+    relative_uncertainty_note,
+)
+from worksheet.engine.formatting import (
+    format_expr,
+    format_number,
+    format_precise,
+    format_uncertainty,
+)
 from worksheet.engine.results import StatementResult
 from worksheet.engine.translate import Translator, Typed, describe
 from worksheet.errors import (
@@ -43,11 +53,15 @@ DEFAULT_NUMERIC_TOLERANCE = Fraction(1, 10**9)
 
 @dataclass(frozen=True)
 class Quantity:
-    """A translated expression with its SI number (None when symbolic)."""
+    """A translated expression with its numbers (``si`` is None when symbolic)."""
 
     typed: Typed
-    si: float | None
+    figures: Figures
     lone_unit: ResolvedUnit | None = None  # set for '25 [degC]' or '3 [km]' written alone
+
+    @property
+    def si(self) -> float | None:
+        return self.figures.trusted
 
 
 class StatementEvaluator:
@@ -63,7 +77,7 @@ class StatementEvaluator:
         self,
         context: Context,
         lookup: Callable[[str], Binding | None],
-        values: Mapping[sympy.Symbol, float],
+        values: Mapping[sympy.Symbol, Binding],
     ):
         self.ctx = context
         self.lookup = lookup
@@ -114,8 +128,17 @@ class StatementEvaluator:
             self.lookup, self.ctx.registry, self.ctx.unit_values, self.ctx.worker, self.ctx.seconds
         )
 
-    def _all_values(self) -> Mapping[sympy.Symbol, float]:
-        return _Values(self.values, self.ctx)
+    def figures(self, expr: sympy.Expr) -> Figures:
+        return compute_figures(expr, self.values, self.ctx, self._input_uncertainty)
+
+    def _input_uncertainty(self, key: str) -> float:
+        """The standard uncertainty of one independent input: a constant or a given."""
+        binding = self.lookup(key)
+        if binding is None:
+            return 0.0
+        if binding.origin is Origin.CONSTANT:
+            return binding.uncertainty or 0.0
+        return binding.input_uncertainty or 0.0
 
     def quantity(self, tr: Translator, node: t.Expr) -> Quantity:
         """Translate and, where every name has a value, compute the SI number."""
@@ -128,27 +151,12 @@ class StatementEvaluator:
                 kelvin = Fraction(si).limit_denominator(10**12)
                 expr = sympy.Rational(kelvin.numerator, kelvin.denominator) * unit_symbol("K")
                 self.ctx.unit_values[unit_symbol("K")] = 1.0
-                return Quantity(Typed(expr, resolved.dimension), si, resolved)
+                typed = Typed(expr, resolved.dimension)
+                return Quantity(typed, self.figures(expr), resolved)
             typed = tr.translate(node)
-            return Quantity(typed, self._number(typed.expr), resolved)
+            return Quantity(typed, self.figures(typed.expr), resolved)
         typed = tr.translate(node)
-        return Quantity(typed, self._number(typed.expr))
-
-    def _number(self, expr: sympy.Expr) -> float | None:
-        try:
-            value = evaluate(expr, self._all_values())
-        except MissingValue:
-            return None
-        except ZeroDivisionError as err:
-            raise EvaluationError("division by zero") from err
-        if isinstance(value, complex):
-            raise EvaluationError("the result is not a real number")
-        value = float(value)
-        if math.isinf(value):
-            raise EvaluationError("the number overflows double precision (above 1.8e308)")
-        if math.isnan(value):
-            raise EvaluationError("the result is not a number (an undefined operation)")
-        return value
+        return Quantity(typed, self.figures(typed.expr))
 
     def output_unit(
         self, quantity: Quantity, conversion: t.Conversion | None, at: t.Statement
@@ -177,9 +185,18 @@ class StatementEvaluator:
             return unit.source, unit.factor, unit.offset
         return dim.si_unit(), 1.0, 0.0
 
-    def _value_text(self, si: float, unit: str, factor: float, offset: float) -> tuple[str, float]:
-        shown = (si - offset) / factor
-        text = format_number(shown, self.ctx.digits)
+    def _value_text(
+        self, quantity: Quantity, unit: str, factor: float, offset: float
+    ) -> tuple[str, float]:
+        figures = quantity.figures
+        if figures.loss is not None and figures.precise is not None:
+            exact = (figures.precise - offset) / factor
+            text = format_precise(exact, self.ctx.digits)
+            shown = float(exact)
+        else:
+            assert quantity.si is not None
+            shown = (quantity.si - offset) / factor
+            text = format_number(shown, self.ctx.digits)
         return (f"{text} {unit}" if unit else text), shown
 
     # --- statements ---
@@ -191,7 +208,12 @@ class StatementEvaluator:
         deps = tuple(dict.fromkeys(tr.used))
         origin = Origin.DERIVED if deps else Origin.GIVEN
         unit, factor, offset = self.output_unit(quantity, stmt.conversion, stmt)
-        uncertainty = self._uncertainty(stmt, quantity, tr)
+        stated = self._uncertainty(stmt, quantity, tr)
+        figures = quantity.figures
+        if stated is not None:  # a stated uncertainty makes the value an independent input
+            gradient, uncertainty = {stmt.name: 1.0}, stated
+        else:
+            gradient, uncertainty = dict(figures.gradient), figures.uncertainty
         symbol = symbol_for(
             stmt.name,
             quantity.si,
@@ -207,6 +229,9 @@ class StatementEvaluator:
             deps=deps,
             value=quantity.si,
             uncertainty=uncertainty,
+            input_uncertainty=stated,
+            gradient=gradient,
+            precise=figures.precise,
             _resolver=self.lookup,
         )
         if origin is Origin.GIVEN:
@@ -246,16 +271,32 @@ class StatementEvaluator:
                 record=record,
                 unit=unit or None,
             )
-        value_text, shown = self._value_text(quantity.si, unit, factor, offset)
-        uncertainty = binding.uncertainty if binding is not None else None
+        figures = quantity.figures
+        value_text, shown = self._value_text(quantity, unit, factor, offset)
+        uncertainty = binding.uncertainty if binding is not None else figures.uncertainty
+        gradient = binding.gradient if binding is not None else figures.gradient
         shown_u = None
+        notes = []
+        if uncertainty and unit:
+            # A unit such as [M_sun] shares G's uncertainty with the value it divides.
+            uncertainty = in_unit_uncertainty(
+                quantity.si, gradient, uncertainty, unit, self.ctx, self._input_uncertainty
+            )
         if uncertainty:
             shown_u = uncertainty / factor
             number, _, unit_part = value_text.partition(" ")
             value_text = f"{number} +- {format_uncertainty(shown_u)}" + (
                 f" {unit_part}" if unit_part else ""
             )
+            poor = relative_uncertainty_note(quantity.si, uncertainty)
+            if poor:
+                notes.append(poor)
+        if figures.loss is not None:
+            double = format_number((figures.value - offset) / factor, self.ctx.digits)
+            notes.append(f"precision loss: {figures.loss}; double precision gave {double}")
         record = f"{head} = {symbolic} = {value_text}" if verb else f"{head} = {value_text}"
+        if notes:
+            record += " (" + "; ".join(notes) + ")"
         return StatementResult(
             stmt.line,
             kind,
@@ -270,6 +311,8 @@ class StatementEvaluator:
             symbolic=symbolic,
             uncertainty=shown_u,
             record=record,
+            precision=figures.loss,
+            message="; ".join(notes) or None,
         )
 
     def _uncertainty(self, stmt: t.Definition, quantity: Quantity, tr: Translator) -> float | None:
@@ -488,35 +531,6 @@ def _plainly_positive(expr: sympy.Expr) -> bool:
     if expr.is_Pow:
         return _plainly_positive(expr.args[0]) and bool(expr.args[1].is_Rational)
     return False
-
-
-class _Values(Mapping):
-    """Sheet values first, then constants and unit factors; a sheet ``None`` hides a constant
-    (a declared constant is a symbol with no value)."""
-
-    def __init__(self, sheet: Mapping[sympy.Symbol, float | None], ctx: Context):
-        self.sheet = sheet
-        self.ctx = ctx
-
-    def __getitem__(self, symbol: sympy.Symbol) -> float:
-        if symbol in self.sheet:
-            value = self.sheet[symbol]
-            if value is None:
-                raise KeyError(symbol)
-            return value
-        unit = self.ctx.unit_values.get(symbol)
-        if unit is not None:
-            return unit
-        constant = self.ctx.constants.get(symbol.name)
-        if constant is not None and constant.symbol == symbol and constant.value is not None:
-            return constant.value
-        raise KeyError(symbol)
-
-    def __iter__(self):
-        return iter(self.sheet)
-
-    def __len__(self) -> int:
-        return len(self.sheet)
 
 
 def _lone_unit_value(node: t.Expr) -> tuple[Fraction, t.Unit] | None:
