@@ -62,13 +62,13 @@ class Binding:
         """The expression in givens, declared symbols and constants (computed once, lazily)."""
         if self._form is not None:
             return self._form
-        if self.origin is not Origin.DERIVED or self.local is None:
+        if self.origin not in (Origin.DERIVED, Origin.ESTIMATE) or self.local is None:
             self._form = self.symbol
             return self._form
         replacements = {}
         for dep in self.deps:
             other = self._resolver(dep) if self._resolver else None
-            if other is not None and other.origin is Origin.DERIVED:
+            if other is not None and other.origin in (Origin.DERIVED, Origin.ESTIMATE):
                 replacements[other.symbol] = other.form()
         self._form = self.local.xreplace(replacements) if replacements else self.local
         return self._form

@@ -130,7 +130,7 @@ class SheetEvaluator:
             else:
                 defines = (
                     getattr(parsed, "name", None)
-                    if isinstance(parsed, t.Definition | t.Relation | t.Declaration)
+                    if isinstance(parsed, t.Definition | t.Relation | t.Declaration | t.Estimate)
                     else None
                 )
                 cached = (parsed, defines, tuple(sorted(referenced_names(parsed))))

@@ -12,6 +12,7 @@ import sympy
 from worksheet.engine import symbolic_ops as ops
 from worksheet.engine.bindings import Binding, Origin, symbol_for, unit_symbol
 from worksheet.engine.context import Context
+from worksheet.engine.estimate import Outcome, solve_exponents
 from worksheet.engine.figures import (
     Figures,
     compute_figures,
@@ -97,6 +98,8 @@ class StatementEvaluator:
                 return self._display(stmt), None
             if isinstance(stmt, t.Check):
                 return self._check(stmt), None
+            if isinstance(stmt, t.Estimate):
+                return self._estimate(stmt)
             if isinstance(stmt, t.Blank):
                 return StatementResult(stmt.line, kind, "", "ok"), None
             raise EvaluationError(
@@ -413,6 +416,108 @@ class StatementEvaluator:
             unit=stmt.unit.source,
             si_unit=compose_base_units(unit.dimension.exponents),
             symbolic=stmt.name,
+        ), binding
+
+    def _estimate(self, stmt: t.Estimate) -> tuple[StatementResult, Binding | None]:
+        """Dimensional analysis: the product of powers of the inputs with the target unit."""
+        self._refuse_constant_name(stmt.name, stmt)
+        target = self.ctx.registry.resolve(stmt.unit, stmt.line, stmt.column)
+        inputs: list[tuple[str, Dimension]] = []
+        bindings: list[Binding] = []
+        for name in stmt.inputs:
+            binding = self.lookup(name)
+            if binding is None or binding.origin is Origin.RELATION:
+                raise NameResolutionError(
+                    f"estimate: '{name}' is not a quantity defined above or a constant",
+                    stmt.line,
+                    stmt.column,
+                )
+            inputs.append((name, binding.dimension))
+            bindings.append(binding)
+        solution = solve_exponents(target.dimension, inputs)
+        if solution.outcome is Outcome.UNREACHABLE:
+            raise DimensionError(
+                f"estimate: no product of powers of {', '.join(stmt.inputs)} is "
+                f"{target.dimension.name()}; {solution.reason}",
+                stmt.line,
+                stmt.column,
+            )
+        if not solution.unique:
+            groups = "; ".join(solution.group_texts())
+            record = (
+                f"{stmt.name}: not unique; the free dimensionless groups are {groups} "
+                "(add or remove inputs to fix them)"
+            )
+            return StatementResult(
+                stmt.line,
+                "estimate",
+                stmt.source,
+                "ok",
+                name=stmt.name,
+                dimension=target.dimension.name(),
+                message=record,
+                record=record,
+            ), None
+        assert solution.exponents is not None
+        expr = sympy.Integer(1)
+        for binding, power in zip(bindings, solution.exponents, strict=True):
+            if power:
+                expr *= binding.symbol ** sympy.Rational(power.numerator, power.denominator)
+        monomial = solution.monomial() or "1"
+        typed = Typed(expr, target.dimension)
+        quantity = Quantity(typed, self.figures(expr))
+        deps = tuple(b.name for b in bindings if b.origin is not Origin.CONSTANT)
+        binding = Binding(
+            name=stmt.name,
+            origin=Origin.ESTIMATE,
+            symbol=symbol_for(stmt.name, quantity.si),
+            dimension=target.dimension,
+            line=stmt.line,
+            local=expr,
+            deps=deps,
+            value=quantity.si,
+            uncertainty=quantity.figures.uncertainty,
+            gradient=dict(quantity.figures.gradient),
+            precise=quantity.figures.precise,
+            _resolver=self.lookup,
+        )
+        head = f"{stmt.name} ~ {monomial}"
+        note = "up to a dimensionless factor that dimensional analysis cannot give"
+        if quantity.si is None:
+            record = f"{head} ({note})"
+            return StatementResult(
+                stmt.line,
+                "estimate",
+                stmt.source,
+                "ok",
+                name=stmt.name,
+                dimension=target.dimension.name(),
+                symbolic=monomial,
+                message=note,
+                record=record,
+            ), binding
+        unit_text = stmt.unit.source
+        value_text, shown = self._value_text(quantity, unit_text, target.factor, target.offset)
+        shown_u = None
+        if binding.uncertainty:
+            shown_u = binding.uncertainty / target.factor
+            number, _, unit_part = value_text.partition(" ")
+            value_text = f"{number} +- {format_uncertainty(shown_u)} {unit_part}".rstrip()
+        record = f"{head} = {value_text} ({note})"
+        return StatementResult(
+            stmt.line,
+            "estimate",
+            stmt.source,
+            "ok",
+            name=stmt.name,
+            value=shown,
+            unit=unit_text,
+            si_value=quantity.si,
+            si_unit=compose_base_units(target.dimension.exponents),
+            dimension=target.dimension.name(),
+            symbolic=monomial,
+            message=note,
+            record=record,
         ), binding
 
     def _display(self, stmt: t.Display) -> StatementResult:
