@@ -13,6 +13,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
+from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
 import sympy
@@ -245,34 +246,38 @@ def relative_uncertainty_note(value: float, uncertainty: float | None) -> str | 
     return None
 
 
-def in_unit_uncertainty(
-    si: float,
-    gradient: Mapping[str, float],
-    uncertainty: float,
-    unit: str,
-    ctx: Context,
-    input_uncertainty: Callable[[str], float],
-) -> float | None:
-    """The SI uncertainty of a value shown in ``unit``, where the unit itself depends on G.
-
-    A value recorded in [M_sun] is x / M_sun with M_sun = GM_sun / G: its G-dependence
-    partly cancels. Returns the SI-equivalent uncertainty (multiply back by the factor's
-    certainty), or the given one when the unit does not involve G.
-    """
+def unit_g_power(unit: str, ctx: Context) -> Fraction:
+    """The power of G in a unit's SI factor: [M_sun] = GM_sun/G goes as G^-1."""
     from worksheet.errors import WorksheetError
     from worksheet.syntax.units import parse_unit
 
     try:
         factors = parse_unit(unit).factors
     except WorksheetError:
-        return uncertainty
-    power = sum((p for name, p in factors if _through_g(name, 1.0, ctx)), start=0)
+        return Fraction(0)
+    return -sum((p for name, p in factors if _through_g(name, 1.0, ctx)), start=Fraction(0))
+
+
+def in_unit_uncertainty(
+    si: float,
+    gradient: Mapping[str, float],
+    uncertainty: float,
+    g_power: Fraction,
+    ctx: Context,
+    input_uncertainty: Callable[[str], float],
+) -> float | None:
+    """The SI-equivalent uncertainty of a value shown in a unit whose factor goes as G^k.
+
+    A value recorded in [M_sun] is x / M_sun with M_sun = GM_sun / G (k = -1), and a value
+    in Planck units is x / l_P with l_P ~ G^(1/2): the G-dependence partly cancels. Multiply
+    the result by 1/factor for the shown uncertainty; k = 0 gives ``uncertainty`` back.
+    """
     g = ctx.constants.get("G")
-    if not power or g is None or not g.value:
+    if not g_power or g is None or not g.value:
         return uncertainty
     shifted = dict(gradient)
-    # d(si / F)/dG * F = d si/dG - si * d ln F/dG, with d ln F/dG = -power / G.
-    shifted["G"] = shifted.get("G", 0.0) + si * float(power) / g.value
+    # d(si / F)/dG * F = d si/dG - si * d ln F/dG, with d ln F/dG = k / G.
+    shifted["G"] = shifted.get("G", 0.0) - si * float(g_power) / g.value
     total = math.fsum((d * input_uncertainty(key)) ** 2 for key, d in shifted.items())
     result = math.sqrt(total)
     return None if result <= ROUNDING_FLOOR * abs(si) else result

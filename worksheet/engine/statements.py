@@ -18,6 +18,7 @@ from worksheet.engine.figures import (
     compute_figures,
     in_unit_uncertainty,
     relative_uncertainty_note,
+    unit_g_power,
 )
 from worksheet.engine.formatting import (
     format_expr,
@@ -27,6 +28,13 @@ from worksheet.engine.formatting import (
 )
 from worksheet.engine.results import StatementResult
 from worksheet.engine.translate import Translator, Typed, describe
+from worksheet.engine.views import (
+    ENERGY,
+    natural_factor,
+    planck_exponents,
+    planck_g_power,
+    power_text,
+)
 from worksheet.errors import (
     DimensionError,
     EvaluationError,
@@ -168,9 +176,9 @@ class StatementEvaluator:
         dim = quantity.typed.dim
         if conversion is not None:
             if conversion.natural:
-                raise EvaluationError(
-                    "natural-unit views are not available yet", conversion.line, conversion.column
-                )
+                return self._natural_unit(dim, conversion)
+            if conversion.planck:
+                return self._planck_unit(dim, conversion)
             target = self.ctx.registry.resolve(
                 conversion.unit, conversion.line, conversion.column + 3
             )
@@ -187,6 +195,59 @@ class StatementEvaluator:
             unit = quantity.lone_unit
             return unit.source, unit.factor, unit.offset
         return dim.si_unit(), 1.0, 0.0
+
+    def _natural_unit(self, dim: Dimension, conversion: t.Conversion) -> tuple[str, float, float]:
+        """``in natural [GeV]``: the value in powers of GeV with hbar = c = k_B = 1."""
+        energy = self.ctx.registry.resolve(conversion.unit, conversion.line, conversion.column)
+        if energy.dimension != ENERGY or energy.is_offset:
+            raise DimensionError(
+                f"'in natural' takes an energy unit such as [GeV], not [{conversion.unit.source}]",
+                conversion.line,
+                conversion.column,
+            )
+        try:
+            factor = natural_factor(dim)
+        except DimensionError as err:
+            raise DimensionError(err.message, conversion.line, conversion.column) from err
+        constants = self.ctx.constants
+        scale = 1.0
+        for symbol, power in (("hbar", factor.p), ("c", factor.q), ("k_B", factor.r)):
+            value = constants[symbol].value
+            assert value is not None
+            scale *= value ** float(power)
+        # shown = si * scale / E^n  ==  si / (E^n / scale)
+        return (
+            power_text(conversion.unit.source, factor.n),
+            energy.factor ** float(factor.n) / scale,
+            0.0,
+        )
+
+    def _planck_unit(self, dim: Dimension, conversion: t.Conversion) -> tuple[str, float, float]:
+        """``in planck``: a pure number of Planck units (G = hbar = c = k_B = 1)."""
+        try:
+            exponents = planck_exponents(dim)
+        except DimensionError as err:
+            raise DimensionError(err.message, conversion.line, conversion.column) from err
+        scale = 1.0
+        for symbol, power in zip(("l_P", "m_P", "t_P", "T_P"), exponents, strict=True):
+            if power:
+                value = self.ctx.constants[symbol].value
+                assert value is not None
+                scale *= value ** float(power)
+        return "", scale, 0.0
+
+    def _view_note(self, stmt: t.Statement, dim: Dimension) -> str | None:
+        conversion = getattr(stmt, "conversion", None)
+        if conversion is None:
+            return None
+        if conversion.natural:
+            return f"natural units, hbar = c = k_B = 1: {natural_factor(dim).describe()}"
+        if conversion.planck:
+            from worksheet.engine.estimate import format_monomial
+
+            unit = format_monomial(("l_P", "m_P", "t_P", "T_P"), planck_exponents(dim))
+            return f"Planck units, G = hbar = c = k_B = 1: in units of {unit}"
+        return None
 
     def _value_text(
         self, quantity: Quantity, unit: str, factor: float, offset: float
@@ -280,10 +341,20 @@ class StatementEvaluator:
         gradient = binding.gradient if binding is not None else figures.gradient
         shown_u = None
         notes = []
-        if uncertainty and unit:
-            # A unit such as [M_sun] shares G's uncertainty with the value it divides.
+        # A unit such as [M_sun], or a Planck unit, shares G's uncertainty with the value.
+        conversion = getattr(stmt, "conversion", None)
+        if conversion is not None and conversion.planck:
+            g_power = planck_g_power(dim)
+        else:
+            g_power = unit_g_power(unit, self.ctx) if unit else Fraction(0)
+        if g_power:
             uncertainty = in_unit_uncertainty(
-                quantity.si, gradient, uncertainty, unit, self.ctx, self._input_uncertainty
+                quantity.si,
+                gradient,
+                uncertainty or 0.0,
+                g_power,
+                self.ctx,
+                self._input_uncertainty,
             )
         if uncertainty:
             shown_u = uncertainty / factor
@@ -294,6 +365,9 @@ class StatementEvaluator:
             poor = relative_uncertainty_note(quantity.si, uncertainty)
             if poor:
                 notes.append(poor)
+        view = self._view_note(stmt, dim)
+        if view:
+            notes.insert(0, view)
         if figures.loss is not None:
             double = format_number((figures.value - offset) / factor, self.ctx.digits)
             notes.append(f"precision loss: {figures.loss}; double precision gave {double}")

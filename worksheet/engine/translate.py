@@ -63,7 +63,7 @@ VERBS = frozenset(
         "subs",
     }
 )
-OTHER_CALLS = frozenset({"sqrt", "abs", "min", "max"})
+OTHER_CALLS = frozenset({"sqrt", "abs", "min", "max", "natural"})
 BUILTIN_CALLS = frozenset(FUNCTIONS) | VERBS | OTHER_CALLS
 
 
@@ -251,6 +251,8 @@ class Translator:
                     )
             function = sympy.Min if name == "min" else sympy.Max
             return Typed(function(*[typed.expr for typed in typed_args]), typed_args[0].dim)
+        if name == "natural":
+            return self._natural(node, local, expand)
         if name in VERBS:
             self.used_verb = True
             from worksheet.engine.verbs import translate_verb
@@ -268,6 +270,41 @@ class Translator:
         if binding.origin is not Origin.RELATION or binding.body is None:
             raise NameResolutionError(f"'{name}' is not a relation", node.line, node.column)
         return self._relation_call(node, binding, local, expand)
+
+    def _natural(self, node: t.Call, local: dict[str, Typed], expand: bool) -> Typed:
+        """``natural(Q, [UNIT])``: a natural-unit value (a power of energy) back in SI."""
+        from worksheet.engine.views import energy_power, natural_back_factor
+
+        value_node, unit_node = self._args(node, 2, 2)
+        if not isinstance(unit_node, t.Unit):
+            raise ParseError(
+                "natural(Q, [UNIT]) takes the SI unit wanted in brackets as its second argument",
+                unit_node.line,
+                unit_node.column,
+            )
+        value = self._node(value_node, local, expand)
+        power = energy_power(value.dim)
+        if power is None:
+            raise DimensionError(
+                f"natural(...) needs a power of energy such as 3 [GeV] or [1/GeV], not "
+                f"{describe(value_node, value)}",
+                value_node.line,
+                value_node.column,
+            )
+        target = self.registry.resolve(unit_node.unit, unit_node.line, unit_node.column)
+        try:
+            factor = natural_back_factor(power, target.dimension)
+        except DimensionError as err:
+            raise DimensionError(err.message, node.line, node.column) from err
+        expr = value.expr
+        for symbol, exponent in (("hbar", factor.p), ("c", factor.q), ("k_B", factor.r)):
+            if exponent:
+                constant = self.lookup(symbol)
+                assert constant is not None
+                expr = expr * constant.symbol ** sympy.Rational(
+                    exponent.numerator, exponent.denominator
+                )
+        return Typed(expr, target.dimension)
 
     def _relation_call(
         self, node: t.Call, binding: Binding, local: dict[str, Typed], expand: bool

@@ -212,6 +212,11 @@ class _Parser:
             return None
         word = self.take()
         natural = False
+        if self.at_word("planck"):
+            self.take()
+            return t.Conversion(
+                t.UnitExpr((), Fraction(1), "planck"), False, word.line, word.column, planck=True
+            )
         if self.at_word("natural"):
             self.take()
             natural = True

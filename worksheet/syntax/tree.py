@@ -85,6 +85,7 @@ class Conversion:
     natural: bool
     line: int
     column: int
+    planck: bool = False  # 'in planck': G = hbar = c = k_B = 1, no unit
 
 
 @dataclass(frozen=True)
