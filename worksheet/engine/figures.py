@@ -59,7 +59,7 @@ class Figures:
         return self.value
 
 
-class _Lookup(Mapping):
+class SymbolValues(Mapping):
     """Symbol -> number of one kind ('float', 'dual' or 'mp') from sheet, units, constants."""
 
     def __init__(self, sheet: Mapping[sympy.Symbol, Binding], ctx: Context, kind: str):
@@ -158,18 +158,18 @@ def compute_figures(
     input_uncertainty: Callable[[str], float],
 ) -> Figures:
     """All the numbers of ``expr``; raises EvaluationError where none can be had."""
-    value = _float_value(expr, _Lookup(sheet, ctx, "float"))
+    value = _float_value(expr, SymbolValues(sheet, ctx, "float"))
     if value is None:
         return Figures(None)
     precise, loss = None, None
     if ctx.guard and (_may_lose_precision(expr) or not _normal(value)):
-        precise, loss = _guard(expr, value, _Lookup(sheet, ctx, "mp"))
+        precise, loss = _guard(expr, value, SymbolValues(sheet, ctx, "mp"))
     if math.isinf(value) and loss is None:
         raise EvaluationError("the number overflows double precision (above 1.8e308)")
     gradient: dict[str, float] = {}
     uncertainty = None
     if _has_uncertain_inputs(expr, sheet, ctx):
-        dual = evaluate(expr, _Lookup(sheet, ctx, "dual"), DUAL)
+        dual = evaluate(expr, SymbolValues(sheet, ctx, "dual"), DUAL)
         gradient = {key: d for key, d in dual.grad.items() if d != 0}
         total = math.fsum((d * input_uncertainty(key)) ** 2 for key, d in gradient.items())
         uncertainty = math.sqrt(total) if total > 0 else None

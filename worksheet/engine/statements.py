@@ -27,6 +27,7 @@ from worksheet.engine.formatting import (
     format_uncertainty,
 )
 from worksheet.engine.results import StatementResult
+from worksheet.engine.sweeps import evaluate_scaling, evaluate_table
 from worksheet.engine.translate import Translator, Typed, describe
 from worksheet.engine.views import (
     ENERGY,
@@ -108,6 +109,10 @@ class StatementEvaluator:
                 return self._check(stmt), None
             if isinstance(stmt, t.Estimate):
                 return self._estimate(stmt)
+            if isinstance(stmt, t.Scaling):
+                return evaluate_scaling(self, stmt), None
+            if isinstance(stmt, t.Table):
+                return evaluate_table(self, stmt), None
             if isinstance(stmt, t.Blank):
                 return StatementResult(stmt.line, kind, "", "ok"), None
             raise EvaluationError(

@@ -107,3 +107,8 @@ def decide_order(lhs: sympy.Expr, rhs: sympy.Expr, op: str) -> bool | None:
         ">": difference.is_positive,
         ">=": difference.is_nonnegative,
     }[op]
+
+
+def log_slope(expr: sympy.Expr, variable: sympy.Symbol) -> sympy.Expr:
+    """d ln f / d ln x: a constant exactly when f is a power law in x."""
+    return sympy.simplify(variable * sympy.diff(expr, variable) / expr)

@@ -1,0 +1,85 @@
+"""scaling and table statements (issue 4), and dimension errors inside verbs."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import scipy.constants as sc
+
+HAWKING = (
+    "M = 5e11 [kg]\n"
+    "T_H = hbar*c^3/(8*pi*G*M*k_B) in [K]\n"
+    "t_ev = 5120*pi*G^2*M^3/(hbar*c^4)\n"
+)
+
+
+def _lifetime(mass: float) -> float:
+    # Photon-only lifetime 5120 pi G^2 M^3 / (hbar c^4) (REFERENCE.md), scipy's CODATA 2022.
+    return 5120 * math.pi * sc.G**2 * mass**3 / (sc.hbar * sc.c**4)
+
+
+def _temperature(mass: float) -> float:
+    return sc.hbar * sc.c**3 / (8 * math.pi * sc.G * mass * sc.k)
+
+
+def test_scaling_of_a_power_law_has_exact_exponents(run_sheet) -> None:
+    results = run_sheet(HAWKING + "scaling t_ev in [yr] around M = 1e12 [kg]\n"
+                        "scaling T_H in [K] around M = 1 [M_sun]\n")
+    years = _lifetime(1e12) / (365.25 * 86400)  # Julian year (IAU)
+    mantissa, exponent = f"{years:.3e}".split("e")
+    assert results[3].record == f"t_ev = {mantissa}e{int(exponent)} yr * (M / 1e12 kg)^3"
+    # The sheet's own M is untouched.
+    assert results[0].record == "M = 5.000e11 kg"
+    assert results[4].record.endswith(" K * (M / 1 M_sun)^-1")
+
+
+def test_scaling_that_is_not_a_power_law_says_so(run_sheet) -> None:
+    results = run_sheet("x = 2 [m]\ny = exp(x/(1 [m]))*3 [kg]\n"
+                        "scaling y in [kg] around x = 1 [m]\n")
+    # d ln y / d ln x = x / (1 m) = 1 at the fiducial point.
+    assert results[2].record == (
+        f"y = {3 * math.e:.4g} kg * (x / 1 m)^1.00 (local logarithmic slopes at the fiducial "
+        "point: not a power law in x)"
+    )
+
+
+def test_table_log_sweep_matches_scipy(run_sheet) -> None:
+    results = run_sheet(HAWKING + "table M = 1e9 [kg] .. 1e15 [kg] log 7: T_H in [K], "
+                        "t_ev in [yr]\n")
+    lines = results[3].record.split("\n")
+    assert lines[0].endswith("log 7: T_H in [K], t_ev in [yr]:")
+    assert lines[1].split() == ["M", "[kg]", "T_H", "[K]", "t_ev", "[yr]"]
+    rows = [line.split() for line in lines[2:]]
+    assert len(rows) == 7
+    for row, mass in zip(rows, np.geomspace(1e9, 1e15, 7), strict=True):
+        assert math.isclose(float(row[0]), mass, rel_tol=5e-4)
+        assert math.isclose(float(row[1]), _temperature(mass), rel_tol=5e-4)
+        assert math.isclose(float(row[2]), _lifetime(mass) / (365.25 * 86400), rel_tol=5e-4)
+
+
+def test_table_list_and_dimension_checks(run_sheet) -> None:
+    results = run_sheet(HAWKING + "table M = 1 [M_sun], 10 [M_sun]: T_H\n"
+                        "table M = 1 [s], 2 [s]: T_H\n"
+                        "table M = 1 [kg], 2 [kg]: T_H in [m]\n")
+    assert results[3].record.split("\n")[1].split() == ["M", "[M_sun]", "T_H", "[K]"]
+    assert results[4].status == "error" and "mass" in results[4].message
+    assert results[4].message.count("time") >= 1
+    assert results[5].status == "error" and "cannot express T_H" in results[5].message
+
+
+def test_table_is_deterministic(run_sheet) -> None:
+    text = HAWKING + "table M = 1e9 [kg] .. 1e12 [kg] lin 5: t_ev\n"
+    assert run_sheet(text)[3].record == run_sheet(text)[3].record
+
+
+def test_dimension_errors_inside_verbs_name_both_sides(run_sheet) -> None:
+    results = run_sheet(
+        "L : [m]\nt : [s]\nm0 = 2 [kg]\n"
+        "a = integrate(L, t) + m0\n"  # a length integrated over time is m*s, not kg
+        "b = solve(L == t, L)\n"  # a length cannot equal a time
+    )
+    assert results[3].status == "error"
+    assert "cannot add dimension m*s" in results[3].message and "mass" in results[3].message
+    assert results[4].status == "error"
+    assert "length (L, m)" in results[4].message and "time (t, s)" in results[4].message
