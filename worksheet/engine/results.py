@@ -29,10 +29,13 @@ class StatementResult:
     uncertainty: float | None = None
     record: str | None = None
     precision: str | None = None  # set when the precision guard found a loss: why
+    plot: Any = None  # PlotData for 'plot' statements
 
     def to_json(self) -> dict[str, Any]:
         data = asdict(self)
         data.pop("record")
+        if data["plot"] is None:
+            data.pop("plot")
         if data["uncertainty"] is None:
             data.pop("uncertainty")
         precision = data.pop("precision")

@@ -55,6 +55,7 @@ KINDS = {
     t.Check: "check",
     t.Scaling: "scaling",
     t.Table: "table",
+    t.Plot: "plot",
     t.Estimate: "estimate",
     t.Blank: "blank",
 }
@@ -113,6 +114,10 @@ class StatementEvaluator:
                 return evaluate_scaling(self, stmt), None
             if isinstance(stmt, t.Table):
                 return evaluate_table(self, stmt), None
+            if isinstance(stmt, t.Plot):
+                from worksheet.engine.plots import evaluate_plot
+
+                return evaluate_plot(self, stmt), None
             if isinstance(stmt, t.Blank):
                 return StatementResult(stmt.line, kind, "", "ok"), None
             raise EvaluationError(

@@ -42,7 +42,7 @@ def referenced_names(stmt: t.AnyStatement) -> set[str]:
         for name, expr in stmt.around:
             names |= {name} | _expr_names(expr)
         return names
-    if isinstance(stmt, t.Table):
+    if isinstance(stmt, t.Table | t.Plot):
         names = {stmt.sweep.name} | {column for column, _ in stmt.columns}
         for expr in stmt.sweep.values:
             names |= _expr_names(expr)

@@ -282,7 +282,9 @@ def parse_statement(text: str, line: int = 1, column: int = 1) -> t.AnyStatement
     if first.kind is Kind.NAME and first.text == "check":
         return _parse_check(parser, pos)
     if first.kind is Kind.NAME and parser.peek(1).kind is Kind.NAME:
-        keyword = {"scaling": _parse_scaling, "table": _parse_table}.get(first.text)
+        keyword = {"scaling": _parse_scaling, "table": _parse_table, "plot": _parse_plot}.get(
+            first.text
+        )
         if keyword:
             return keyword(parser, pos)
     if first.kind is Kind.NAME and first.text == "estimate" and parser.peek(1).kind is Kind.NAME:
@@ -395,14 +397,12 @@ def _parse_scaling(parser: _Parser, pos: tuple[int, int, str]) -> t.Scaling:
     return t.Scaling(*pos, target, unit, tuple(around))
 
 
-def _parse_table(parser: _Parser, pos: tuple[int, int, str]) -> t.Table:
-    parser.take()
+def _parse_sweep(parser: _Parser, most: int, what: str) -> t.Sweep:
+    """``M = a .. b log N``, ``M = a .. b lin N`` or ``M = a, b, c``."""
     name = parser.expect_name("the swept input").text
     parser.expect("=")
-    first = parser.expression()
-    values = [first]
+    values = [parser.expression()]
     spacing: str | None = None
-    count = 0
     if parser.at(".."):
         parser.take()
         values.append(parser.expression())
@@ -412,30 +412,59 @@ def _parse_table(parser: _Parser, pos: tuple[int, int, str]) -> t.Table:
         spacing = parser.take().text
         count_token = parser.peek()
         if count_token.kind is not Kind.NUMBER or not count_token.text.isdigit():
-            raise parser.error("expected a whole number of rows")
+            raise parser.error(f"expected a whole number of {what}")
         count = int(parser.take().text)
-        if not 2 <= count <= 10000:
-            raise parser.error("a table has from 2 to 10000 rows", count_token)
+        if not 2 <= count <= most:
+            raise parser.error(f"from 2 to {most} {what}", count_token)
     else:
         while parser.at(","):
             parser.take()
             values.append(parser.expression())
         count = len(values)
-    parser.expect(":", what="':' before the columns")
+    return t.Sweep(name, tuple(values), spacing, count)
+
+
+def _parse_columns(parser: _Parser, what: str) -> tuple[tuple[str, t.UnitExpr | None], ...]:
+    """``T_H in [K], t_ev in [yr]``: quantities, each with an optional unit."""
     columns: list[tuple[str, t.UnitExpr | None]] = []
     while True:
-        column = parser.expect_name("a quantity to tabulate").text
+        column = parser.expect_name(what).text
         unit = None
         if parser.at_word("in"):
             parser.take()
             unit, _ = parser.expect_unit()
         columns.append((column, unit))
-        if parser.at(","):
-            parser.take()
-            continue
-        break
+        if not parser.at(","):
+            return tuple(columns)
+        parser.take()
+
+
+def _parse_table(parser: _Parser, pos: tuple[int, int, str]) -> t.Table:
+    parser.take()
+    sweep = _parse_sweep(parser, 10000, "rows")
+    parser.expect(":", what="':' before the columns")
+    columns = _parse_columns(parser, "a quantity to tabulate")
     parser.expect_end()
-    return t.Table(*pos, t.Sweep(name, tuple(values), spacing, count), tuple(columns))
+    return t.Table(*pos, sweep, columns)
+
+
+def _parse_plot(parser: _Parser, pos: tuple[int, int, str]) -> t.Plot:
+    """``plot T_H in [K], t_ev in [yr] over M = 1e9 [kg] .. 1e15 [kg] log 40 [y log]``."""
+    parser.take()
+    columns = _parse_columns(parser, "a quantity to plot")
+    if not parser.at_word("over"):
+        raise parser.error(f"expected 'over' and the swept input, found {parser.peek().describe()}")
+    parser.take()
+    sweep = _parse_sweep(parser, 2000, "points")
+    y_scale: str | None = None
+    if parser.at_word("y"):
+        parser.take()
+        word = parser.peek()
+        if not (word.kind is Kind.NAME and word.text in ("log", "lin")):
+            raise parser.error("expected 'y log' or 'y lin'")
+        y_scale = parser.take().text
+    parser.expect_end()
+    return t.Plot(*pos, sweep, columns, y_scale)
 
 
 def _parse_estimate(parser: _Parser, pos: tuple[int, int, str]) -> t.Estimate:

@@ -161,6 +161,15 @@ class Table(Statement):
 
 
 @dataclass(frozen=True)
+class Plot(Statement):
+    """Quantities against a swept given; ``y_scale`` None means chosen from the data."""
+
+    sweep: Sweep
+    columns: tuple[tuple[str, UnitExpr | None], ...]
+    y_scale: str | None
+
+
+@dataclass(frozen=True)
 class Estimate(Statement):
     name: str
     unit: UnitExpr
@@ -173,7 +182,16 @@ class Blank(Statement):
 
 
 AnyStatement = (
-    Definition | Relation | Declaration | Display | Check | Scaling | Table | Estimate | Blank
+    Definition
+    | Relation
+    | Declaration
+    | Display
+    | Check
+    | Scaling
+    | Table
+    | Plot
+    | Estimate
+    | Blank
 )
 
 
