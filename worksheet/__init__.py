@@ -2,7 +2,8 @@
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
+import os
+from typing import TYPE_CHECKING, Any
 
 __version__ = "0.1.0"
 
@@ -13,25 +14,34 @@ CAUTION = (
 """The caution the command line and every standalone export carry."""
 
 if TYPE_CHECKING:
-    from worksheet.runner import SheetRun
+    from worksheet.api import Sheet, SheetResult
+
+# The engine is imported inside each function, so that ``import worksheet`` (which the
+# command line and the pytest plugin do) stays fast.
 
 
-def run(path: str) -> SheetRun:
+def load(path: str | os.PathLike[str], *, ureg: Any | None = None) -> Sheet:
+    """Read the sheet file at ``path``; ``.run()`` it in memory, ``.save()`` its results."""
+    from worksheet.api import load as _load
+
+    return _load(path, ureg=ureg)
+
+
+def loads(text: str, *, ureg: Any | None = None) -> Sheet:
+    """A sheet from its text (``.save(path)`` then needs a path)."""
+    from worksheet.api import loads as _loads
+
+    return _loads(text, ureg=ureg)
+
+
+def run(path: str | os.PathLike[str]) -> SheetResult:
     """Run the sheet at ``path`` in memory and return its results (nothing is written)."""
-    from worksheet.document import read_document
-    from worksheet.runner import SheetRunner
-
-    runner = SheetRunner()
-    try:
-        return runner.run(read_document(path))
-    finally:
-        runner.close()
+    return load(path).run()
 
 
-def check(path: str) -> bool:
+def check(path: str | os.PathLike[str]) -> bool:
     """Whether every claim of the sheet holds, nothing errs and no recorded result is stale."""
-    result = run(path)
-    return all(r.status == "ok" for r in result.with_staleness() if r.kind != "blank")
+    return load(path).check()
 
 
-__all__ = ["CAUTION", "__version__", "check", "run"]
+__all__ = ["CAUTION", "__version__", "check", "load", "loads", "run"]

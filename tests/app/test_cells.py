@@ -107,3 +107,41 @@ def test_add_move_and_edit_note(basic_sheet: Path, ui) -> None:
         assert "More [m] here." in ui.screen_text(app)
 
     ui.drive(app, scenario)
+
+
+def test_blank_notes_are_hidden_and_out_of_the_tab_order(tmp_path: Path, ui) -> None:
+    path = tmp_path / "two.sheet.md"  # two calc cells with only a blank line between
+    path.write_text("---\ntitle: two\nconstants: CODATA2018\n---\n\n```calc\na = 1 [m]\n```"
+                    "\n\n```calc\nb = 2*a\n```\n", encoding="utf-8")
+    app = WorksheetApp(str(path))
+
+    async def scenario(pilot, app: WorksheetApp) -> None:
+        await ui.settle(pilot, app)
+        blank = [view for view in app.query(NoteCellView) if not view.text.strip()]
+        assert blank  # the blank lines between fences are blocks of the file
+        app.query(CalcCellView).first().editor.focus()
+        for _ in range(8):
+            await pilot.press("tab")
+            assert not any(view.has_focus for view in blank)
+
+    ui.drive(app, scenario)
+
+
+def test_undo_puts_the_cursor_back(basic_sheet: Path, ui) -> None:
+    app = WorksheetApp(str(basic_sheet))
+
+    async def scenario(pilot, app: WorksheetApp) -> None:
+        await ui.settle(pilot, app)
+        editor = app.query(CalcCellView).first().editor
+        editor.focus()
+        editor.move_cursor((2, 5))
+        await pilot.press(*"(1)*")
+        await ui.settle(pilot, app)
+        await pilot.press("ctrl+z")
+        await ui.settle(pilot, app)
+        editor = app.query(CalcCellView).first().editor
+        assert editor.has_focus
+        assert editor.document.get_line(2) == "T_H = hbar*c^3/(8*pi*G*M*k_B) in [K]"
+        assert editor.cursor_location[0] == 2
+
+    ui.drive(app, scenario)

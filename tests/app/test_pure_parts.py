@@ -136,3 +136,52 @@ def test_importing_the_app_package_does_not_load_textual() -> None:
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           check=True)
     assert done.stdout.strip() == "False"
+
+
+def test_finder_offers_common_si_units_by_name_or_kind() -> None:
+    from worksheet.app.screens.finder import search
+    from worksheet.constants import load_dataset
+
+    dataset = load_dataset("CODATA2018")
+    assert "[J]" in [found.insert for found in search(dataset, "joule")]
+    assert "[Pa]" in [found.insert for found in search(dataset, "pressure")]
+    assert "[TeV]" in [found.insert for found in search(dataset, "teraelectronvolt")]
+
+
+def test_common_units_resolve_to_the_dimension_they_are_listed_under() -> None:
+    from worksheet.app.unit_list import COMMON_UNITS
+    from worksheet.constants import load_dataset
+    from worksheet.syntax.units import parse_unit
+    from worksheet.units.registry import UnitRegistry
+
+    registry = UnitRegistry(load_dataset("CODATA2018"))
+    for symbol, _name, kind in COMMON_UNITS:
+        unit = registry.resolve(parse_unit(symbol))
+        assert unit.dimension.name().removeprefix("dimension ") == kind, symbol
+    # Spot checks of factors against SI definitions (exact by the 2019 SI).
+    assert registry.resolve(parse_unit("eV")).factor == pytest.approx(1.602176634e-19)
+    assert registry.resolve(parse_unit("bar")).factor == pytest.approx(1e5)
+
+
+def test_ledger_rows_carry_uncertainties() -> None:
+    import scipy.constants as sc
+
+    doc = parse_document(
+        "---\nconstants: CODATA2018\n---\n\n```calc\n"
+        "M = 2 [kg] +- 5%\n"  # a given with a standard uncertainty of 0.1 kg
+        "E = M*c^2\n"
+        "F = G*M^2/(1 [m])^2\n"
+        "```\n"
+    )
+    service = RunService()
+    try:
+        outcome = service.run(doc)
+    finally:
+        service.close()
+    assert outcome is not None and outcome.run is not None
+    rows = {row.name: row for row in outcome.rows}
+    assert rows["M"].shown_value == "2.000 +- 0.10 kg"
+    assert rows["c"].uncertainty == "exact"  # c is exact in the SI
+    # G's standard uncertainty from scipy (CODATA 2018 there too), two figures.
+    expected = f"{sc.physical_constants['Newtonian constant of gravitation'][2]:.1e}"
+    assert rows["G"].uncertainty == expected

@@ -7,7 +7,13 @@ from pathlib import Path
 import pytest
 
 from worksheet.app.app import WorksheetApp
-from worksheet.app.theme_files import BUILT_IN, THEMES_FOLDER, load_themes, parse_theme
+from worksheet.app.theme_files import (
+    BUILT_IN,
+    STYLESHEET_NAME,
+    load_themes,
+    parse_theme,
+    themes_folder,
+)
 from worksheet.errors import WorksheetError
 
 
@@ -22,7 +28,7 @@ def test_shipped_themes_load_without_problems() -> None:
 
 def test_stylesheet_uses_no_literal_colours() -> None:
     # STYLE habit 5: colours only through theme variables.
-    text = (THEMES_FOLDER / "worksheet.tcss").read_text(encoding="utf-8")
+    text = themes_folder().joinpath(STYLESHEET_NAME).read_text(encoding="utf-8")
     assert "#" not in text.replace("#title", "").replace("#body", "").replace(
         "#sheet", "").replace("#side", "").replace("#ledger", "").replace(
         "#links", "").replace("#finder-matches", "")

@@ -30,8 +30,9 @@ from worksheet.app.session import SheetSession
 from worksheet.app.theme_files import (
     FALLBACK,
     STATE_DEFAULTS,
-    STYLESHEET,
+    STYLESHEET_NAME,
     load_themes,
+    read_stylesheet,
     read_theme_file,
 )
 from worksheet.app.widgets.calc_cell import CalcCellView
@@ -64,11 +65,17 @@ class WorksheetApp(App[int]):
 
     TITLE = "worksheet"
     BINDINGS = app_bindings()  # type: ignore[assignment]
-    DEBOUNCE_SECONDS = 0.3
+    DEBOUNCE_SECONDS = 0.15
     RECOVERY_SECONDS = 3.0
+    # A run still going after this long when a newer edit waits is given up (see RunService).
+    GIVE_UP_AFTER = 1.0
 
     def __init__(self, path: str, theme: str | None = None) -> None:
-        super().__init__(css_path=STYLESHEET if STYLESHEET.is_file() else None)
+        super().__init__()
+        stylesheet = read_stylesheet()
+        if stylesheet is not None:
+            # Read through importlib.resources, so it works from a wheel as from the tree.
+            self.CSS = stylesheet
         self.sheet_path = Path(path)
         self.requested_theme = theme
         self.service = RunService()
@@ -77,8 +84,8 @@ class WorksheetApp(App[int]):
         self.theme_names: list[str] = []
         self.problems: list[str] = (
             []
-            if STYLESHEET.is_file()
-            else [f"the stylesheet {STYLESHEET.name} is missing; the layout is plain"]
+            if stylesheet is not None
+            else [f"the stylesheet {STYLESHEET_NAME} is missing; the layout is plain"]
         )
         self._generation = 0
         self._run_timer: Timer | None = None
@@ -112,7 +119,10 @@ class WorksheetApp(App[int]):
             self.exit(2, message=f"cannot open {self.sheet_path.name}: {err.located()}")
             return
         self.query_one(QuantityLinks).show(None)
-        await self._show_document(0)
+        # Paint the sheet with the results its file records first, then compute: the run
+        # would otherwise compete with the first paint for the interpreter.
+        await self._show_document(0, run=False)
+        self.call_after_refresh(self.start_run)
         self.set_interval(self.RECOVERY_SECONDS, self.keep_recovery)
         if self.problems:
             self.say("; ".join(self.problems), problem=True)
@@ -180,14 +190,17 @@ class WorksheetApp(App[int]):
         mark = "  * unsaved edits" if self.session.dirty else ""
         self.query_one("#title", Static).update(Text(f"{title}  ({self.sheet_path.name}){mark}"))
 
-    async def _show_document(self, focus: int | None) -> None:
-        """Rebuild every cell view from the session and run the sheet at once."""
+    async def _show_document(
+        self, focus: int | None, cursor: tuple[int, int] | None = None, run: bool = True
+    ) -> None:
+        """Rebuild every cell view from the session and run the sheet (at once by default)."""
         assert self.session is not None
         await self.sheet.rebuild(self.session.doc)
         if focus is not None:
-            self.sheet.focus_block(focus)
+            self.sheet.focus_block(focus, cursor)
         self._refresh_title()
-        self.start_run()
+        if run:
+            self.start_run()
 
     @property
     def settled(self) -> bool:
@@ -218,6 +231,9 @@ class WorksheetApp(App[int]):
             self._run_timer = None
         self._generation += 1
         self.say("computing ...")
+        # A run going on for long (a verb in its budget) would hold this one back.
+        if self.service.give_up_slow_run(self.GIVE_UP_AFTER):
+            self._notice = "gave up a slow run for the newer edit"
         self._evaluate(self.session.doc, self._generation)
 
     @work(thread=True, exclusive=True, group="evaluate", exit_on_error=False)
@@ -355,11 +371,18 @@ class WorksheetApp(App[int]):
             return
         await views[index].toggle_editing()  # type: ignore[union-attr]
 
-    async def _structural(self, change: str, focus: int | None) -> None:
+    async def _structural(
+        self, change: str, focus: int | None, cursor: tuple[int, int] | None = None
+    ) -> None:
         """Rebuild after a change to the list of cells and say what happened."""
         self._notice = change
-        await self._show_document(focus)
+        await self._show_document(focus, cursor)
         self.say(change)
+
+    def _cursor(self) -> tuple[int, int] | None:
+        """Where the cursor is in the focused editor, to put it back after a rebuild."""
+        focused = self.focused
+        return focused.cursor_location if isinstance(focused, TextArea) else None
 
     async def action_add_calc(self) -> None:
         await self._insert("calc")
@@ -417,18 +440,18 @@ class WorksheetApp(App[int]):
         await self._structural("moved the cell", target)
 
     async def action_undo(self) -> None:
-        index = self._current_block()
+        index, cursor = self._current_block(), self._cursor()
         if self.session is None or not self.session.undo():
             self.say("nothing to undo")
             return
-        await self._structural("undone", index)
+        await self._structural("undone", index, cursor)
 
     async def action_redo(self) -> None:
-        index = self._current_block()
+        index, cursor = self._current_block(), self._cursor()
         if self.session is None or not self.session.redo():
             self.say("nothing to redo")
             return
-        await self._structural("redone", index)
+        await self._structural("redone", index, cursor)
 
     # ----- files
 
@@ -468,7 +491,11 @@ class WorksheetApp(App[int]):
 
     @work(thread=True, group="save", exit_on_error=False)
     def _save(self, doc: object, then_quit: bool) -> None:
-        outcome = self.service.run(doc)  # type: ignore[arg-type]
+        outcome = None
+        for _ in range(3):  # a run given up for a newer edit gives None: save still wanted
+            outcome = self.service.run(doc)  # type: ignore[arg-type]
+            if outcome is not None or self._closed:
+                break
         problem = None
         if outcome is None or outcome.run is None:
             problem = f"not saved: {outcome.problem if outcome else 'cancelled'}"

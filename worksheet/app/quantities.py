@@ -7,7 +7,7 @@ from dataclasses import dataclass
 
 from worksheet.engine import SourceStatement, StatementResult
 from worksheet.engine.bindings import Binding, Origin
-from worksheet.engine.formatting import format_number
+from worksheet.engine.formatting import format_number, format_uncertainty
 from worksheet.errors import WorksheetError
 from worksheet.syntax import parse_statement
 from worksheet.syntax.names import referenced_names
@@ -25,6 +25,14 @@ class QuantityRow:
     line: int | None
     reads: tuple[tuple[str, int], ...]  # (name, line of its definition)
     read_by: tuple[int, ...]  # lines of statements that use it
+    uncertainty: str = ""  # standard uncertainty in the row's unit; "" when none, "exact"
+    source: str = ""  # where a constant's value is published
+
+    @property
+    def shown_value(self) -> str:
+        """``value +- uncertainty unit`` as the ledger shows it (the sheet's own ``+-``)."""
+        spread = f" +- {self.uncertainty}" if self.uncertainty not in ("", "exact") else ""
+        return f"{self.value}{spread} {self.unit}".strip()
 
 
 def statement_names(statements: Sequence[SourceStatement]) -> dict[int, frozenset[str]]:
@@ -63,6 +71,15 @@ def _recorded(result: StatementResult | None, binding: Binding, digits: int) -> 
     return "(no value)", binding.dimension.si_unit()
 
 
+def _spread(result: StatementResult | None, binding: Binding) -> str:
+    """The uncertainty in the unit the value is shown in (results carry it so)."""
+    if result is not None and result.value is not None:
+        return format_uncertainty(result.uncertainty) if result.uncertainty else ""
+    if binding.uncertainty:
+        return format_uncertainty(binding.uncertainty)
+    return ""
+
+
 def quantity_rows(
     bindings: Mapping[str, Binding],
     constants: Mapping[str, Binding],
@@ -83,18 +100,22 @@ def quantity_rows(
     rows: list[QuantityRow] = []
     for name, binding in bindings.items():
         value, unit = _recorded(result_of.get(name), binding, digits)
+
         used = names_of.get(binding.line, frozenset()) if binding.line is not None else frozenset()
         reads = tuple(sorted(((n, defined_on[n]) for n in used if n in defined_on
                               and n != name), key=lambda item: item[1]))
+        result = result_of.get(name)
         rows.append(QuantityRow(name, value, unit, dimension_text(binding),
                                 _origin_text(binding), binding.line, reads,
-                                read_by(name, binding.line)))
+                                read_by(name, binding.line), _spread(result, binding)))
     used_constants = sorted({n for used in names_of.values() for n in used
                              if n in constants and n not in bindings})
     for name in used_constants:
         binding = constants[name]
         value = format_number(binding.value, digits) if binding.value is not None else "(none)"
+        spread = (format_uncertainty(binding.uncertainty) if binding.uncertainty
+                  else "exact" if binding.value is not None else "")
         rows.append(QuantityRow(name, value, binding.dimension.si_unit(),
-                                dimension_text(binding), f"constant, {dataset}", None, (),
-                                read_by(name, None)))
+                                dimension_text(binding), f"constant, {dataset}", None,
+                                (), read_by(name, None), spread, binding.source))
     return rows

@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import tomllib
 from dataclasses import dataclass
+from importlib import resources
+from importlib.resources.abc import Traversable
 from pathlib import Path
 
 from textual.color import Color, ColorParseError
@@ -17,8 +19,9 @@ from textual.theme import Theme
 
 from worksheet.errors import WorksheetError
 
-THEMES_FOLDER = Path(__file__).resolve().parents[2] / "themes"
-STYLESHEET = THEMES_FOLDER / "worksheet.tcss"
+# The top-level themes/ folder, installed as this package (see pyproject.toml).
+THEMES_PACKAGE = "worksheet.themes"
+STYLESHEET_NAME = "worksheet.tcss"
 BUILT_IN = ("dark", "light", "contrast")
 
 COLOUR_KEYS = ("primary", "secondary", "warning", "error", "success", "accent", "foreground",
@@ -78,7 +81,21 @@ def parse_theme(text: str, label: str) -> Theme:
     return Theme(name=name.strip(), dark=dark, variables=extra, **chosen)
 
 
-def read_theme_file(path: Path) -> Theme:
+def themes_folder() -> Traversable:
+    """The shipped themes, wherever the package is installed (folder, wheel or zip)."""
+    return resources.files(THEMES_PACKAGE)
+
+
+def read_stylesheet(folder: Traversable | None = None) -> str | None:
+    """The app's stylesheet text, or None when it is missing or unreadable."""
+    try:
+        return (folder or themes_folder()).joinpath(STYLESHEET_NAME).read_text(
+            encoding="utf-8")
+    except (OSError, UnicodeDecodeError, ModuleNotFoundError):
+        return None
+
+
+def read_theme_file(path: Path | Traversable) -> Theme:
     """Read one theme file (raises WorksheetError when it is unreadable or broken)."""
     try:
         text = path.read_text(encoding="utf-8")
@@ -87,13 +104,19 @@ def read_theme_file(path: Path) -> Theme:
     return parse_theme(text, path.name)
 
 
-def load_themes(folder: Path = THEMES_FOLDER) -> ThemeLoad:
-    """Every ``*.toml`` theme in ``folder``, sorted by file name."""
+def load_themes(folder: Path | Traversable | None = None) -> ThemeLoad:
+    """Every ``*.toml`` theme in ``folder`` (default: the shipped ones), by file name."""
     themes: list[Theme] = []
     problems: list[str] = []
-    paths = sorted(folder.glob("*.toml")) if folder.is_dir() else []
+    try:
+        where = folder if folder is not None else themes_folder()
+        paths = sorted((p for p in where.iterdir() if p.name.endswith(".toml")),
+                       key=lambda p: p.name) if where.is_dir() else []
+    except (OSError, ModuleNotFoundError):
+        where, paths = None, []
     if not paths:
-        problems.append(f"no theme files found in the folder {folder.name}")
+        label = where.name if where is not None else THEMES_PACKAGE
+        problems.append(f"no theme files found in the folder {label}")
     for path in paths:
         try:
             themes.append(read_theme_file(path))

@@ -14,6 +14,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Input, OptionList, Static
 from textual.widgets.option_list import Option
 
+from worksheet.app.unit_list import COMMON_UNITS
 from worksheet.constants import Dataset
 
 
@@ -26,7 +27,10 @@ class Found:
 
 
 def search(dataset: Dataset, words: str) -> list[Found]:
-    """Constants, then units, whose symbol or name holds every word (any case)."""
+    """Constants, the dataset's units, then common SI units, matching every word (any case).
+
+    A word matches the symbol, the name, or (for the common units) what the unit measures.
+    """
     needles = words.casefold().split()
 
     def matches(symbol: str, name: str) -> bool:
@@ -37,6 +41,9 @@ def search(dataset: Dataset, words: str) -> list[Found]:
              for c in dataset.constants.values() if matches(c.symbol, c.name)]
     found += [Found(f"[{u.symbol}]", f"[{u.symbol}]  {u.name} = {u.value} {u.unit}")
               for u in dataset.units.values() if matches(u.symbol, u.name)]
+    found += [Found(f"[{symbol}]", f"[{symbol}]  {name} ({kind})")
+              for symbol, name, kind in COMMON_UNITS
+              if symbol not in dataset.units and matches(symbol, f"{name} {kind}")]
     return found
 
 

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterable
+
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
@@ -39,6 +41,8 @@ class CalcCellView(Vertical):
         yield CalcEditor(self._initial)
         yield ResultLines()
 
+    blank = False  # only blank notes are hidden
+
     def _header(self) -> Text:
         return Text(f"calc  from line {self.first_line}")
 
@@ -57,6 +61,9 @@ class CalcCellView(Vertical):
     def show_waiting(self, message: str) -> None:
         self.query_one(ResultLines).show_waiting(message)
 
+    def show_recorded(self, lines: Iterable[str]) -> None:
+        self.query_one(ResultLines).show_recorded(lines)
+
     def place(self, index: int, first_line: int) -> None:
         """Update where the cell sits after edits elsewhere in the sheet."""
         self.index = index
@@ -64,8 +71,10 @@ class CalcCellView(Vertical):
             self.first_line = first_line
             self.query_one(".cell-header", Static).update(self._header())
 
-    def focus_row(self, row: int) -> None:
-        """Put the cursor at the start of body row ``row`` and focus the editor."""
+    def focus_row(self, row: int, column: int = 0) -> None:
+        """Put the cursor at body row ``row`` (and ``column``, clamped) and focus the editor."""
         editor = self.editor
         editor.focus()
-        editor.move_cursor((max(0, min(row, editor.document.line_count - 1)), 0))
+        row = max(0, min(row, editor.document.line_count - 1))
+        column = max(0, min(column, len(editor.document.get_line(row))))
+        editor.move_cursor((row, column))

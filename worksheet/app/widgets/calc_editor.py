@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 from textual.widgets import TextArea
 
 from worksheet.app.highlight import STYLE_OF, line_spans
@@ -13,6 +15,16 @@ def _byte_offsets(line: str) -> list[int]:
     for char in line:
         offsets.append(offsets[-1] + len(char.encode("utf-8")))
     return offsets
+
+
+@lru_cache(maxsize=4096)
+def line_highlights(line: str) -> tuple[tuple[int, int, str], ...]:
+    """Byte spans and highlight names of one line; cached, so a key re-tokenizes one line."""
+    spans = line_spans(line)
+    if not spans:
+        return ()
+    offsets = _byte_offsets(line)
+    return tuple((offsets[start], offsets[end], STYLE_OF[kind]) for start, end, kind in spans)
 
 
 class CalcEditor(TextArea):
@@ -34,10 +46,6 @@ class CalcEditor(TextArea):
         highlights = self._highlights
         highlights.clear()
         for row, line in enumerate(self.document.lines):
-            spans = line_spans(line)
-            if not spans:
-                continue
-            offsets = _byte_offsets(line)
-            highlights[row].extend(
-                (offsets[start], offsets[end], STYLE_OF[kind]) for start, end, kind in spans
-            )
+            spans = line_highlights(line)
+            if spans:
+                highlights[row].extend(spans)

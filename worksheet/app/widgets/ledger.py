@@ -8,10 +8,16 @@ from rich.text import Text
 from textual import on
 from textual.message import Message
 from textual.widgets import DataTable
+from textual.widgets.data_table import ColumnKey
 
 from worksheet.app.quantities import QuantityRow
 
 COLUMNS = ("name", "value", "dimension", "origin")
+
+
+def _cells(row: QuantityRow) -> tuple[Text, Text, Text, Text]:
+    # Text cells: a plain str would be read as markup and lose "[...]".
+    return Text(row.name), Text(row.shown_value), Text(row.dimension), Text(row.origin)
 
 
 class QuantityLedger(DataTable[Text]):
@@ -30,20 +36,30 @@ class QuantityLedger(DataTable[Text]):
     def __init__(self, **kwargs: object) -> None:
         super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)  # type: ignore[arg-type]
         self._rows: dict[str, QuantityRow] = {}
+        self._column_keys: list[ColumnKey] = []
 
     def on_mount(self) -> None:
-        self.add_columns(*COLUMNS)
+        self._column_keys = self.add_columns(*COLUMNS)
 
     def show(self, rows: Sequence[QuantityRow]) -> None:
-        """Replace the rows, keeping the cursor on the same name where possible."""
+        """Show ``rows``: only changed cells are redrawn when the names stay the same."""
+        fresh = {row.name: row for row in rows}
+        if list(fresh) == list(self._rows):
+            for name, row in fresh.items():
+                old = self._rows[name]
+                if row != old:
+                    for column, (new_cell, old_cell) in enumerate(
+                            zip(_cells(row), _cells(old), strict=True)):
+                        if new_cell != old_cell:
+                            self.update_cell(name, self._column_keys[column], new_cell,
+                                             update_width=True)
+            self._rows = fresh
+            return
         keep = self.chosen_name()
         self.clear()
-        self._rows = {row.name: row for row in rows}
+        self._rows = fresh
         for row in rows:
-            # Text cells: a plain str would be read as markup and lose "[...]".
-            value = f"{row.value} {row.unit}".strip()
-            self.add_row(Text(row.name), Text(value), Text(row.dimension), Text(row.origin),
-                         key=row.name)
+            self.add_row(*_cells(row), key=row.name)
         if keep in self._rows:
             self.move_cursor(row=list(self._rows).index(keep))
 

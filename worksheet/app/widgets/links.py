@@ -26,10 +26,14 @@ class QuantityLinks(OptionList):
         if row is None:
             self.add_option(Option(Text("choose a quantity in the ledger"), disabled=True))
             return
-        value = f"{row.value} {row.unit}".strip()
         options: list[Option] = [
-            Option(Text(f"{row.name} = {value}  ({row.dimension}; {row.origin})"), disabled=True)
+            Option(Text(f"{row.name} = {row.shown_value}  ({row.dimension}; {row.origin})"),
+                   disabled=True)
         ]
+        if row.uncertainty == "exact":
+            options.append(Option(Text("exact by definition"), disabled=True))
+        if row.source:
+            options.append(Option(Text(f"source: {row.source}"), disabled=True))
         if row.line is not None:
             options.append(Option(Text(f"defined on line {row.line}"), id=f"line-{row.line}"))
         for name, line in row.reads:

@@ -28,6 +28,11 @@ class NoteCellView(Vertical, can_focus=True):
         super().__init__(classes="cell note-cell")
         self.index = index
         self.text = text
+        # The blank lines between two calc cells are a note too, in the file's model; on
+        # screen they are hidden and out of the tab order.
+        self.blank = not text.strip()
+        self.set_class(self.blank, "-blank")
+        self.can_focus = not self.blank
 
     @property
     def editing(self) -> bool:

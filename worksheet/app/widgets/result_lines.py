@@ -4,8 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Iterable
 
-from rich.text import Text
-from textual.containers import Vertical
+from textual.content import Content
 from textual.widgets import Static
 
 from worksheet.engine import StatementResult
@@ -29,27 +28,70 @@ def result_text(result: StatementResult) -> str:
     return result.text
 
 
-class ResultLines(Vertical):
-    """One line per statement result; CSS classes ``-ok -failed -error -skipped -stale``."""
+# The word before a line the file records, shown until the first run has checked it.
+PENDING_WORD = "pending"
+
+# How each kind of line is drawn: theme variables only, resolved when the line is drawn.
+LINE_STYLES = {
+    "ok": "$result-ok",
+    "failed": "$result-failed bold",
+    "error": "$result-error bold",
+    "skipped": "$text-muted italic",
+    "stale": "$result-stale",
+    "pending": "$text-muted italic",
+    "waiting": "$text-muted",
+    "empty": "$text-muted",
+}
+
+Line = tuple[str, str]  # (kind, text)
+
+
+def result_line(result: StatementResult) -> Line:
+    word = STATUS_WORDS.get(result.status, result.status.upper())
+    return result.status, f"{word:<7} {result_text(result)}"
+
+
+class ResultLines(Static):
+    """The lines of one cell's results in one widget (a widget a line slows long sheets).
+
+    The text is redrawn only when a run changes it; the kinds of the lines shown are kept
+    as CSS classes (``-ok -failed -error -skipped -stale -pending``) for stylesheets.
+    """
 
     DEFAULT_CSS = """
     ResultLines { height: auto; }
-    ResultLines > Static { height: auto; }
     """
 
+    def __init__(self) -> None:
+        super().__init__("")
+        self._shown: tuple[Line, ...] = ()
+
+    @property
+    def lines(self) -> tuple[Line, ...]:
+        return self._shown
+
     def show(self, results: Iterable[StatementResult]) -> None:
-        """Replace the shown lines (sheet text goes in as Text, so [kg] stays visible)."""
-        self.remove_children()
-        lines = []
-        for result in results:
-            word = STATUS_WORDS.get(result.status, result.status.upper())
-            line = Static(Text(f"{word:<7} {result_text(result)}"), classes=f"-{result.status}")
-            lines.append(line)
-        if not lines:
-            lines.append(Static(Text("(nothing to record)"), classes="-empty"))
-        self.mount_all(lines)
+        """Show the results (sheet text is never read as markup, so [kg] stays visible)."""
+        lines = tuple(result_line(result) for result in results)
+        self._show_lines(lines or (("empty", "(nothing to record)"),))
+
+    def show_recorded(self, recorded: Iterable[str]) -> None:
+        """The lines the file records, marked as not yet checked by a run."""
+        lines = tuple(("pending", f"{PENDING_WORD:<7} {text}") for text in recorded)
+        self._show_lines(lines or (("waiting", "computing ..."),))
 
     def show_waiting(self, message: str) -> None:
         """A placeholder while the cell is being computed."""
-        self.remove_children()
-        self.mount(Static(Text(message), classes="-waiting"))
+        self._show_lines((("waiting", message),))
+
+    def _show_lines(self, lines: tuple[Line, ...]) -> None:
+        if lines == self._shown:
+            return
+        parts: list[str | tuple[str, str]] = []
+        for position, (kind, text) in enumerate(lines):
+            if position:
+                parts.append("\n")
+            parts.append((text, LINE_STYLES.get(kind, "")))
+        self.set_classes(" ".join(sorted({f"-{kind}" for kind, _ in lines})))
+        self.update(Content.assemble(*parts))
+        self._shown = lines

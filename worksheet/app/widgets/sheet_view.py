@@ -9,6 +9,7 @@ from worksheet.app.session import editor_text
 from worksheet.app.widgets.calc_cell import CalcCellView
 from worksheet.app.widgets.note_cell import NoteCellView
 from worksheet.document import CalcCell, SheetDocument
+from worksheet.engine import StatementResult
 from worksheet.runner import SheetRun
 
 CellView = CalcCellView | NoteCellView
@@ -44,9 +45,9 @@ class SheetView(VerticalScroll):
             else:
                 views.append(NoteCellView(index, block.text))
         await self.mount_all(views)
-        for view in views:
-            if isinstance(view, CalcCellView):
-                view.show_waiting("computing ...")
+        for view, block in zip(views, doc.blocks, strict=True):
+            if isinstance(view, CalcCellView) and isinstance(block, CalcCell):
+                view.show_recorded(block.result.lines() if block.result is not None else ())
 
     def replace_places(self, doc: SheetDocument) -> None:
         """After an edit inside one cell, refresh the line numbers of all calc cells."""
@@ -58,18 +59,27 @@ class SheetView(VerticalScroll):
         """Show each calc cell's results (with staleness against the recorded text)."""
         marked = run.with_staleness()
         calc_views = [view for view in self.cells() if isinstance(view, CalcCellView)]
-        for ordinal, view in enumerate(calc_views):
-            view.show_results([result for source, result in zip(run.statements, marked,
-                                                                 strict=True)
-                               if source.cell == ordinal])
+        per_cell: list[list[StatementResult]] = [[] for _ in calc_views]
+        for source, result in zip(run.statements, marked, strict=True):
+            if source.cell < len(per_cell):
+                per_cell[source.cell].append(result)
+        for view, results in zip(calc_views, per_cell, strict=True):
+            view.show_results(results)
 
-    def focus_block(self, index: int) -> None:
-        cells = self.cells()
+    def focus_block(self, index: int, cursor: tuple[int, int] | None = None) -> None:
+        """Focus the cell at ``index`` or the nearest one that is shown (blank notes are not).
+
+        ``cursor`` (row, column) goes back into a calc cell's editor, clamped to its text.
+        """
+        cells = [view for view in self.cells() if not view.blank]
         if not cells:
             return
-        view = cells[max(0, min(index, len(cells) - 1))]
+        view = min(cells, key=lambda v: (abs(v.index - index), v.index < index))
         if isinstance(view, CalcCellView):
-            view.editor.focus()
+            if cursor is not None and view.index == index:
+                view.focus_row(*cursor)
+            else:
+                view.editor.focus()
         else:
             view.focus()
         view.scroll_visible()

@@ -1,0 +1,172 @@
+"""Speed figures of the terminal app (a script, never a timed test).
+
+Run: python benchmarks/app_benchmarks.py
+(``--screenshot docs/screenshot.svg`` writes the README's screenshot instead.)
+
+1. Launch: process start to the first full paint of a demo sheet (every widget laid out,
+   the cells drawn with the results their file records), against the import floor of
+   sympy + numpy + pint + textual. Target: at most 1.3 x the floor.
+2. Typing on a generated 300-statement sheet, driven by textual's pilot: the longest time
+   the event loop was blocked while keys arrive (target < 50 ms), and the time from the
+   last key until the results on screen are those of the text (target < 300 ms).
+"""
+
+from __future__ import annotations
+
+import asyncio
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "sheets" / "burst-budget.sheet.md"
+SIZE = (100, 30)
+
+FLOOR = "import sympy, numpy, pint, textual; print('ready', flush=True)"
+FLOOR_APP = "import sympy, numpy, pint, textual.app; print('ready', flush=True)"
+
+# The child process of the launch measurement: open the app headless, wait for the first
+# full paint, say so, and leave at once (tear-down is not part of the launch).
+LAUNCH = """
+import os, sys
+from worksheet.app.app import WorksheetApp
+
+
+class Measured(WorksheetApp):
+    def start_run(self):
+        # The app starts its first run right after the first refresh with the cells
+        # mounted: that is the first full paint.
+        text = "\\n".join(s.text for s in self.screen._compositor.render_strips())
+        assert "calc  from line" in text and "f1 Help" in text, text
+        print("ready", flush=True)
+        os._exit(0)
+
+
+Measured(sys.argv[1]).run(headless=True, size=({w}, {h}))
+"""
+
+
+def until_ready(command: list[str], repeat: int = 7) -> float:
+    """Median time from process start until it prints ``ready``, in seconds."""
+    times = []
+    for _ in range(repeat):
+        start = time.perf_counter()
+        with subprocess.Popen(command, stdout=subprocess.PIPE, text=True, cwd=ROOT) as child:
+            assert child.stdout is not None
+            line = child.stdout.readline()
+            elapsed = time.perf_counter() - start
+            child.wait()
+        if line.strip() != "ready":
+            raise SystemExit(f"the measured command did not get ready: {command}")
+        times.append(elapsed)
+    return statistics.median(times)
+
+
+def generated_sheet(statements: int = 300, per_cell: int = 10) -> str:
+    """A long derivation: a given mass with dependents, then chains of givens and steps."""
+    lines = ["M = 5e11 [kg]"] + [f"d{k} = G*M/c^2*{k + 1}" for k in range(9)]
+    k = 0
+    while len(lines) < statements:
+        lines += [f"x{k} = {k + 1}.5 [m]", f"y{k} = x{k}*2/(3 [s])", f"check y{k} > 0 [m/s]"]
+        k += 1
+    lines = lines[:statements]
+    parts = ["---\ntitle: Long chain\nconstants: CODATA2018\ndigits: 4\n---\n"]
+    for start in range(0, len(lines), per_cell):
+        parts.append(f"Step {start // per_cell + 1}.\n")
+        parts.append("```calc\n" + "\n".join(lines[start : start + per_cell]) + "\n```\n")
+    return "\n".join(parts)
+
+
+async def typing_figures(path: Path) -> tuple[float, float, float, int]:
+    """(worst loop block while typing, median and worst time to current results) in s."""
+    from worksheet.app.app import WorksheetApp
+    from worksheet.app.widgets.calc_cell import CalcCellView
+
+    app = WorksheetApp(str(path))
+    worst_block = 0.0
+    to_current: list[float] = []
+    keys = 0
+    async with app.run_test(size=SIZE) as pilot:
+        while not app.settled:
+            await pilot.pause(0.02)
+        watching = True
+
+        async def watch() -> None:
+            nonlocal worst_block
+            last = time.perf_counter()
+            while watching:
+                await asyncio.sleep(0.001)
+                now = time.perf_counter()
+                worst_block = max(worst_block, now - last)
+                last = now
+
+        # The middle cell: x14 = 15.5 [m] heads it; its line is changed digit by digit.
+        cell = app.query(CalcCellView)[15]
+        editor = cell.editor
+        editor.focus()
+        await pilot.pause(0.1)
+        watcher = asyncio.create_task(watch())
+        for burst in range(5):
+            editor.move_cursor((0, len(editor.document.get_line(0).split(" [")[0])))
+            burst_keys = ("1", "2", "backspace") if burst % 2 else ("7", "backspace", "3")
+            for position, key in enumerate(burst_keys):
+                if position:
+                    await asyncio.sleep(0.06)  # a quick typist
+                last_key = time.perf_counter()
+                await pilot.press(key)
+                keys += 1
+            while not app.settled:
+                await asyncio.sleep(0.002)
+            to_current.append(time.perf_counter() - last_key)
+            await asyncio.sleep(0.2)
+        watching = False
+        await watcher
+    app.close_service()
+    return worst_block, statistics.median(to_current), max(to_current), keys
+
+
+async def screenshot(target: Path) -> None:
+    """The README's screenshot: the demo sheet at 100 x 30 after its first run."""
+    from worksheet.app.app import WorksheetApp
+    from worksheet.app.widgets.calc_cell import CalcCellView
+
+    app = WorksheetApp(str(DEMO))
+    async with app.run_test(size=SIZE) as pilot:
+        while not app.settled:
+            await pilot.pause(0.05)
+        app.query(CalcCellView).first().editor.focus()
+        await pilot.pause(0.3)
+        target.write_text(app.export_screenshot(title="worksheet"), encoding="utf-8")
+    app.close_service()
+
+
+def main() -> None:
+    if sys.argv[1:2] == ["--screenshot"]:
+        asyncio.run(screenshot(Path(sys.argv[2])))
+        return
+    python = sys.executable
+    floor = until_ready([python, "-c", FLOOR])
+    floor_app = until_ready([python, "-c", FLOOR_APP])
+    launch = until_ready([python, "-c", LAUNCH.format(w=SIZE[0], h=SIZE[1]), str(DEMO)])
+    print(f"import floor (sympy+numpy+pint+textual):     {floor * 1000:5.0f} ms")
+    print(f"import floor with textual.app:               {floor_app * 1000:5.0f} ms")
+    print(
+        f"launch to first full paint ({DEMO.name}): {launch * 1000:5.0f} ms "
+        f"({launch / floor:.2f} x floor; target <= 1.3)"
+    )
+    with tempfile.TemporaryDirectory() as folder:
+        path = Path(folder) / "long.sheet.md"
+        path.write_text(generated_sheet(), encoding="utf-8")
+        block, median, worst, keys = asyncio.run(typing_figures(path))
+    print(f"300 statements, {keys} keys: longest UI block {block * 1000:.0f} ms (target < 50)")
+    print(
+        f"300 statements: last key to current results, median {median * 1000:.0f} ms, "
+        f"worst {worst * 1000:.0f} ms (target < 300)"
+    )
+
+
+if __name__ == "__main__":
+    main()
