@@ -7,11 +7,7 @@ import math
 import numpy as np
 import scipy.constants as sc
 
-HAWKING = (
-    "M = 5e11 [kg]\n"
-    "T_H = hbar*c^3/(8*pi*G*M*k_B) in [K]\n"
-    "t_ev = 5120*pi*G^2*M^3/(hbar*c^4)\n"
-)
+HAWKING = "M = 5e11 [kg]\nT_H = hbar*c^3/(8*pi*G*M*k_B) in [K]\nt_ev = 5120*pi*G^2*M^3/(hbar*c^4)\n"
 
 
 def _lifetime(mass: float) -> float:
@@ -24,8 +20,10 @@ def _temperature(mass: float) -> float:
 
 
 def test_scaling_of_a_power_law_has_exact_exponents(run_sheet) -> None:
-    results = run_sheet(HAWKING + "scaling t_ev in [yr] around M = 1e12 [kg]\n"
-                        "scaling T_H in [K] around M = 1 [M_sun]\n")
+    results = run_sheet(
+        HAWKING + "scaling t_ev in [yr] around M = 1e12 [kg]\n"
+        "scaling T_H in [K] around M = 1 [M_sun]\n"
+    )
     years = _lifetime(1e12) / (365.25 * 86400)  # Julian year (IAU)
     mantissa, exponent = f"{years:.3e}".split("e")
     assert results[3].record == f"t_ev = {mantissa}e{int(exponent)} yr * (M / 1e12 kg)^3"
@@ -35,8 +33,9 @@ def test_scaling_of_a_power_law_has_exact_exponents(run_sheet) -> None:
 
 
 def test_scaling_that_is_not_a_power_law_says_so(run_sheet) -> None:
-    results = run_sheet("x = 2 [m]\ny = exp(x/(1 [m]))*3 [kg]\n"
-                        "scaling y in [kg] around x = 1 [m]\n")
+    results = run_sheet(
+        "x = 2 [m]\ny = exp(x/(1 [m]))*3 [kg]\nscaling y in [kg] around x = 1 [m]\n"
+    )
     # d ln y / d ln x = x / (1 m) = 1 at the fiducial point.
     assert results[2].record == (
         f"y = {3 * math.e:.4g} kg * (x / 1 m)^1.00 (local logarithmic slopes at the fiducial "
@@ -45,8 +44,9 @@ def test_scaling_that_is_not_a_power_law_says_so(run_sheet) -> None:
 
 
 def test_table_log_sweep_matches_scipy(run_sheet) -> None:
-    results = run_sheet(HAWKING + "table M = 1e9 [kg] .. 1e15 [kg] log 7: T_H in [K], "
-                        "t_ev in [yr]\n")
+    results = run_sheet(
+        HAWKING + "table M = 1e9 [kg] .. 1e15 [kg] log 7: T_H in [K], t_ev in [yr]\n"
+    )
     lines = results[3].record.split("\n")
     assert lines[0].endswith("log 7: T_H in [K], t_ev in [yr]:")
     assert lines[1].split() == ["M", "[kg]", "T_H", "[K]", "t_ev", "[yr]"]
@@ -59,9 +59,11 @@ def test_table_log_sweep_matches_scipy(run_sheet) -> None:
 
 
 def test_table_list_and_dimension_checks(run_sheet) -> None:
-    results = run_sheet(HAWKING + "table M = 1 [M_sun], 10 [M_sun]: T_H\n"
-                        "table M = 1 [s], 2 [s]: T_H\n"
-                        "table M = 1 [kg], 2 [kg]: T_H in [m]\n")
+    results = run_sheet(
+        HAWKING + "table M = 1 [M_sun], 10 [M_sun]: T_H\n"
+        "table M = 1 [s], 2 [s]: T_H\n"
+        "table M = 1 [kg], 2 [kg]: T_H in [m]\n"
+    )
     assert results[3].record.split("\n")[1].split() == ["M", "[M_sun]", "T_H", "[K]"]
     assert results[4].status == "error" and "mass" in results[4].message
     assert results[4].message.count("time") >= 1

@@ -8,7 +8,6 @@ quickly: its symbolic work is stopped and its results are thrown away, never sho
 
 from __future__ import annotations
 
-import contextlib
 import threading
 import time
 from collections.abc import Callable
@@ -148,12 +147,5 @@ class RunService:
 
 
 def _stop_process(worker: Worker) -> None:
-    """Kill the worker's process now; the verb waiting on it fails and the worker restarts.
-
-    The engine's Worker has no public way to interrupt a call from another thread (its
-    lock is held for the whole call), so this reaches for the process it holds.
-    """
-    process = getattr(worker, "_process", None)
-    if process is not None:
-        with contextlib.suppress(OSError, ValueError, AttributeError):
-            process.kill()
+    """Kill the worker's process now; the verb waiting on it fails and the worker restarts."""
+    worker.interrupt()

@@ -93,6 +93,17 @@ class Worker:
             raise EvaluationError(f"{what} failed: {payload}")
         return payload
 
+    def interrupt(self) -> None:
+        """Stop the call under way, from any thread: its caller gets an EvaluationError.
+
+        Does not take the call lock (the caller holds it while waiting); killing the
+        process makes the waiting ``poll``/``recv`` fail, and the next call starts afresh.
+        """
+        process = self._process
+        if process is not None:
+            with contextlib.suppress(OSError, ValueError, AttributeError):
+                process.kill()
+
     def close(self) -> None:
         with self._lock:
             if self._connection is not None:
