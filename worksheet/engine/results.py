@@ -3,7 +3,8 @@
 from __future__ import annotations
 
 import math
-from dataclasses import asdict, dataclass
+from dataclasses import dataclass, field, fields
+from functools import cached_property
 from typing import Any
 
 
@@ -25,17 +26,36 @@ class StatementResult:
     si_value: float | None = None
     si_unit: str | None = None
     dimension: str | None = None
-    symbolic: str | None = None
+    symbolic_text: str | None = None
     uncertainty: float | None = None
     record: str | None = None
     precision: str | None = None  # set when the precision guard found a loss: why
     plot: Any = None  # PlotData for 'plot' statements
+    form: Any = field(default=None, compare=False, repr=False)
+    """The sympy expression behind ``symbolic``, printed only when someone asks."""
+
+    @cached_property
+    def symbolic(self) -> str | None:
+        """The symbolic form as sheet text (printed lazily: printing is a hot-path cost)."""
+        if self.symbolic_text is not None or self.form is None:
+            return self.symbolic_text
+        from worksheet.engine.formatting import format_expr
+
+        return format_expr(self.form)
 
     def to_json(self) -> dict[str, Any]:
-        data = asdict(self)
-        data.pop("record")
+        data: dict[str, Any] = {}
+        for item in fields(self):
+            if item.name in ("record", "form"):
+                continue
+            if item.name == "symbolic_text":
+                data["symbolic"] = self.symbolic
+            else:
+                data[item.name] = getattr(self, item.name)
         if data["plot"] is None:
             data.pop("plot")
+        else:
+            data["plot"] = data["plot"].to_json()
         if data["uncertainty"] is None:
             data.pop("uncertainty")
         precision = data.pop("precision")

@@ -328,10 +328,12 @@ class StatementEvaluator:
         unit, factor, offset = unit_info
         typed = quantity.typed
         head = name if name is not None else to_text(stmt.expr)  # type: ignore[attr-defined]
-        form = binding.form() if binding is not None else typed.expr
-        symbolic = format_expr(form)
+        # A number needs only the statement's own expression shown; a symbolic result is
+        # shown in givens and declared symbols (its form), which is what a reader wants.
+        form = typed.expr if binding is None or quantity.si is not None else binding.form()
         dim = typed.dim
         if quantity.si is None:
+            symbolic = format_expr(form)
             record = f"{head} = {symbolic}"
             return StatementResult(
                 stmt.line,
@@ -340,7 +342,7 @@ class StatementEvaluator:
                 "ok",
                 name=name,
                 dimension=dim.name(),
-                symbolic=symbolic,
+                symbolic_text=symbolic,
                 si_unit=compose_base_units(dim.exponents),
                 record=record,
                 unit=unit or None,
@@ -381,7 +383,9 @@ class StatementEvaluator:
         if figures.loss is not None:
             double = format_number((figures.value - offset) / factor, self.ctx.digits)
             notes.append(f"precision loss: {figures.loss}; double precision gave {double}")
-        record = f"{head} = {symbolic} = {value_text}" if verb else f"{head} = {value_text}"
+        record = (
+            f"{head} = {format_expr(form)} = {value_text}" if verb else f"{head} = {value_text}"
+        )
         if notes:
             record += " (" + "; ".join(notes) + ")"
         return StatementResult(
@@ -395,7 +399,7 @@ class StatementEvaluator:
             si_value=quantity.si,
             si_unit=compose_base_units(dim.exponents),
             dimension=dim.name(),
-            symbolic=symbolic,
+            form=form,
             uncertainty=shown_u,
             record=record,
             precision=figures.loss,
@@ -462,7 +466,7 @@ class StatementEvaluator:
             stmt.source,
             "ok",
             name=stmt.name,
-            symbolic=symbolic,
+            symbolic_text=symbolic,
             record=f"{head} = {symbolic}",
         ), binding
 
@@ -499,7 +503,7 @@ class StatementEvaluator:
             dimension=unit.dimension.name(),
             unit=stmt.unit.source,
             si_unit=compose_base_units(unit.dimension.exponents),
-            symbolic=stmt.name,
+            symbolic_text=stmt.name,
         ), binding
 
     def _estimate(self, stmt: t.Estimate) -> tuple[StatementResult, Binding | None]:
@@ -576,7 +580,7 @@ class StatementEvaluator:
                 "ok",
                 name=stmt.name,
                 dimension=target.dimension.name(),
-                symbolic=monomial,
+                symbolic_text=monomial,
                 message=note,
                 record=record,
             ), binding
@@ -599,7 +603,7 @@ class StatementEvaluator:
             si_value=quantity.si,
             si_unit=compose_base_units(target.dimension.exponents),
             dimension=target.dimension.name(),
-            symbolic=monomial,
+            symbolic_text=monomial,
             message=note,
             record=record,
         ), binding
