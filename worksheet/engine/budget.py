@@ -124,7 +124,10 @@ def statement_timer(seconds: float) -> Iterator[None]:
         return
 
     def expire(signum: int, frame: Any) -> None:
-        raise BudgetError(f"the statement ran past its time budget of {seconds:g} s")
+        raise BudgetError(
+            f"the statement ran past {seconds:g} s (twice the budget per verb) and was stopped "
+            "(raise it with the 'budget' front-matter key or --budget)"
+        )
 
     previous = signal.signal(signal.SIGALRM, expire)
     signal.setitimer(signal.ITIMER_REAL, seconds)
