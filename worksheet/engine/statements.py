@@ -370,10 +370,7 @@ class StatementEvaluator:
             )
         if uncertainty:
             shown_u = uncertainty / factor
-            number, _, unit_part = value_text.partition(" ")
-            value_text = f"{number} +- {format_uncertainty(shown_u)}" + (
-                f" {unit_part}" if unit_part else ""
-            )
+            value_text = _with_uncertainty(value_text, shown_u)
             poor = relative_uncertainty_note(quantity.si, uncertainty)
             if poor:
                 notes.append(poor)
@@ -589,8 +586,7 @@ class StatementEvaluator:
         shown_u = None
         if binding.uncertainty:
             shown_u = binding.uncertainty / target.factor
-            number, _, unit_part = value_text.partition(" ")
-            value_text = f"{number} +- {format_uncertainty(shown_u)} {unit_part}".rstrip()
+            value_text = _with_uncertainty(value_text, shown_u)
         record = f"{head} = {value_text} ({note})"
         return StatementResult(
             stmt.line,
@@ -709,6 +705,12 @@ class StatementEvaluator:
                 stmt.line,
             )
         return bool(sign), f"{format_expr(lhs)} {stmt.op} {format_expr(rhs)} is false"
+
+
+def _with_uncertainty(value_text: str, uncertainty: float) -> str:
+    """``2.454e11 K`` with its uncertainty: ``2.454e11 +- 5.5e6 K``."""
+    number, _, unit = value_text.partition(" ")
+    return f"{number} +- {format_uncertainty(uncertainty)}" + (f" {unit}" if unit else "")
 
 
 def _plainly_positive(expr: sympy.Expr) -> bool:

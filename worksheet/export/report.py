@@ -14,6 +14,7 @@ from worksheet.constants import Dataset, load_dataset
 from worksheet.document import CalcCell, NoteBlock
 from worksheet.engine import SourceStatement, StatementResult
 from worksheet.engine.formatting import format_number, format_uncertainty
+from worksheet.engine.translate import VERBS  # a step using one shows its symbolic form
 from worksheet.errors import WorksheetError
 from worksheet.runner import SheetRun
 from worksheet.syntax import parse_statement, parse_unit
@@ -28,22 +29,6 @@ STATUS_WORDS: dict[str, str] = {
     "stale": "stale",
 }
 """How a claim's status is said in words (never by colour alone)."""
-
-VERBS = frozenset(
-    (
-        "diff",
-        "integrate",
-        "solve",
-        "simplify",
-        "expand",
-        "factor",
-        "series",
-        "limit",
-        "dsolve",
-        "subs",
-    )
-)
-"""Derivation verbs: a step using one also shows the symbolic form it produced."""
 
 
 @dataclass(frozen=True)
