@@ -65,8 +65,10 @@ def build_parser() -> argparse.ArgumentParser:
 
     p_export = sub.add_parser("export", help="write a document for a proposal or a referee")
     p_export.add_argument("file")
-    p_export.add_argument("--to", required=True, choices=["latex", "html", "md"])
-    p_export.add_argument("-o", "--output")
+    p_export.add_argument("--to", required=True, choices=["latex", "html", "md", "svg", "png"])
+    p_export.add_argument(
+        "-o", "--output", help="the file to write (svg/png: the folder for the pictures)"
+    )
     return parser
 
 
@@ -265,16 +267,35 @@ def _open(args: argparse.Namespace) -> int:
 
 
 def _export(args: argparse.Namespace) -> int:
-    from worksheet.export import export_run
+    from worksheet.document import atomic_write_text
+    from worksheet.export import PLOT_FORMATS, export_run, plot_files
 
     run = _run_document(args.file)
+    stem = str(Path(args.file).with_suffix(""))
+    if args.to in PLOT_FORMATS:
+        folder = Path(args.output) if args.output else Path(stem).parent
+        if not folder.is_dir():
+            raise UsageError(f"{folder}: not a folder (with --to {args.to}, -o names a folder)")
+        try:
+            files = plot_files(run, args.to, Path(stem).name)
+        except WorksheetError as err:
+            raise UsageError(f"{args.file}: {err.located()}") from err
+        if not files:
+            print(f"{args.file}: no plot to draw; nothing was written")
+            return 0
+        for item in files:
+            target = folder / item.name
+            try:
+                target.write_bytes(item.content)
+            except OSError as err:
+                raise UsageError(f"{target}: cannot write ({err.strerror})") from err
+            print(f"wrote {target}")
+        return 0
     try:
         text, suffix = export_run(run, args.to, source_name=Path(args.file).name)
     except WorksheetError as err:
         raise UsageError(f"{args.file}: {err.located()}") from err
-    target = args.output or str(Path(args.file).with_suffix("")) + suffix
-    from worksheet.document import atomic_write_text
-
+    target = args.output or stem + suffix
     atomic_write_text(target, text)
     print(f"wrote {target}")
     return 0

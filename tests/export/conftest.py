@@ -76,3 +76,34 @@ def hostile_run() -> SheetRun:
 @pytest.fixture(scope="session")
 def burst_text() -> str:
     return BURST
+
+
+PLOTS = """\
+---
+title: Sweeps of a light hole
+constants: CODATA2022
+digits: 4
+---
+
+```calc
+M = 5e11 [kg]
+T_H = hbar*c^3/(8*pi*G*M*k_B) in [K]
+t_ev = 5120*pi*G^2*M^3/(hbar*c^4)
+plot T_H in [K], t_ev in [yr] over M = 1e9 [kg] .. 1e15 [kg] log 25
+plot T_H in [K] over M = 1e9 [kg] .. 1e10 [kg] lin 5 y lin
+table M = 1e9 [kg] .. 1e15 [kg] log 4: T_H in [K], t_ev in [yr]
+x = 1e-9 [rad]
+w = 1 - cos(x)
+```
+"""
+"""Two plots (log-log, linear), a table, and a result the precision guard marks (line 15)."""
+
+
+@pytest.fixture(scope="session")
+def plot_run() -> SheetRun:
+    return run_text(PLOTS)
+
+
+@pytest.fixture(scope="session")
+def plot_text() -> str:
+    return PLOTS

@@ -3,6 +3,12 @@
 ``export_run(run, to)`` gives the text and the file suffix the command line appends to the
 sheet's name without ``.md`` (``burst.sheet.md`` becomes ``burst.sheet.tex``,
 ``burst.sheet.html`` or ``burst.sheet.report.md``).
+
+Plots: HTML embeds each as inline SVG, LaTeX draws each with pgfplots from its data, the
+Markdown report keeps the text chart (one self-contained file). ``plot_files(run, "svg",
+stem)`` gives one picture per plot (``burst.sheet.plot-14.svg``); ``"png"`` needs the
+optional extra ``worksheet[plots]`` (matplotlib). ``table`` statements come out as real
+tables in all three documents.
 """
 
 from __future__ import annotations
@@ -12,6 +18,7 @@ from worksheet.errors import WorksheetError
 from worksheet.export.html import html_document
 from worksheet.export.latex import latex_document
 from worksheet.export.markdown import markdown_document
+from worksheet.export.plot_files import PLOT_FORMATS, PlotFile, plot_files
 from worksheet.export.report import Report, build_report
 from worksheet.runner import SheetRun
 
@@ -45,4 +52,13 @@ def export_run(
     return text, FORMATS[to]
 
 
-__all__ = ["CAUTION", "FORMATS", "Report", "build_report", "export_run"]
+__all__ = [
+    "CAUTION",
+    "FORMATS",
+    "PLOT_FORMATS",
+    "PlotFile",
+    "Report",
+    "build_report",
+    "export_run",
+    "plot_files",
+]

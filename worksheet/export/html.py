@@ -1,7 +1,8 @@
 """The HTML export: one self-contained page (inline CSS, no script, no network resource).
 
 All sheet text is escaped; notes go through markdown-it with raw HTML turned off, so a
-``<script>`` in a note is shown as text.
+``<script>`` in a note is shown as text. Plots are inline SVG (no ``id`` attributes, so
+several share a page), tables real ``<table>``s.
 """
 
 from __future__ import annotations
@@ -25,8 +26,17 @@ from worksheet.export.report import (
     NoteItem,
     Report,
     Step,
+    ValueText,
     value_text,
     written_with_verb,
+)
+from worksheet.export.svg_plot import plot_svg
+from worksheet.export.sweep_table import (
+    SweepTable,
+    is_number,
+    plot_table,
+    read_table_record,
+    split_number,
 )
 from worksheet.syntax import parse_expression
 from worksheet.syntax import tree as t
@@ -59,7 +69,13 @@ var { font-style: italic; }
 .frac > .den { padding: 0 0.2em; }
 .radicand { border-top: 1px solid currentColor; padding-left: 0.1em; }
 pre, code { font-family: 'DejaVu Sans Mono', Menlo, Consolas, monospace; font-size: 0.9rem; }
-pre.record { margin: 0.2rem 0; }
+pre.record { margin: 0.2rem 0; overflow-x: auto; }
+figure.plot { margin: 0.4rem 0; }
+figure.plot svg { max-width: 100%; height: auto; }
+table.sweep { border-top: 1px solid #333333; border-bottom: 1px solid #333333; }
+table.sweep th { border-bottom: 1px solid #333333; text-align: right; }
+table.sweep td { text-align: right; font-variant-numeric: tabular-nums; }
+.note { color: #444444; font-size: 0.85rem; }
 """
 
 
@@ -116,6 +132,10 @@ def _step_row(step: Step, digits: int) -> str:
     math = step_math_html(step, digits)
     if math is not None:
         left, right, status = math
+        if result_note(step):
+            status += (
+                ("<br>" if status else "") + '<span class="note">' + result_note(step) + "</span>"
+            )
         return (
             f'<tr{_row_class(step)}>{line}<td class="math">{left}</td>'
             f'<td class="math">{right}</td><td class="status">{status}</td></tr>\n'
@@ -124,6 +144,10 @@ def _step_row(step: Step, digits: int) -> str:
     body = "<code>" + escape(step.source.text) + "</code>"
     if result.status != "ok" and result.message:
         body += " — " + escape(result.message)
+    elif result.kind == "plot" and result.plot is not None:
+        body += plot_figure_html(step, digits)
+    elif result.kind == "table" and (table := read_table_record(result.record)) is not None:
+        body += sweep_table_html(table)
     elif result.record:
         body += '<pre class="record">' + escape(result.record) + "</pre>"
     status = escape(step.status_word) if (result.status != "ok" or step.is_claim) else ""
@@ -131,6 +155,48 @@ def _step_row(step: Step, digits: int) -> str:
         f'<tr{_row_class(step)}>{line}<td colspan="2">{body}</td>'
         f'<td class="status">{status}</td></tr>\n'
     )
+
+
+def result_note(step: Step) -> str:
+    """What the engine noted about a shown value (precision loss, poor uncertainty), escaped."""
+    result = step.result
+    return escape(result.message) if result.status == "ok" and result.message else ""
+
+
+def plot_figure_html(step: Step, digits: int) -> str:
+    """The plot inline as SVG, with its numbers in a table one click away (no script)."""
+    data = step.result.plot
+    svg = plot_svg(data, f"{step.source.text} (line {step.source.line})", standalone=False)
+    return (
+        '<figure class="plot">\n'
+        + svg
+        + "<figcaption><details><summary>The plotted numbers</summary>\n"
+        + sweep_table_html(plot_table(data, digits))
+        + "</details></figcaption>\n</figure>\n"
+    )
+
+
+def _number_cell(cell: str) -> str:
+    if not is_number(cell):
+        return escape(cell)
+    mantissa, exponent = split_number(cell)
+    return value_html(ValueText(mantissa, exponent, None, None, True))
+
+
+def _header_html(name: str, unit: str) -> str:
+    shown = unit_text_html(unit)
+    return name_html(name) + (" [" + shown + "]" if shown else "")
+
+
+def sweep_table_html(table: SweepTable) -> str:
+    """A sweep as a real table: typeset names and units, numbers with powers of ten."""
+    head = "".join(f"<th>{_header_html(c.name, c.unit)}</th>" for c in table.columns)
+    rows = "".join(
+        "<tr>" + "".join(f"<td>{_number_cell(cell)}</td>" for cell in row) + "</tr>\n"
+        for row in table.rows
+    )
+    notes = "".join(f'<p class="note">{escape(note)}</p>\n' for note in table.notes)
+    return f'<table class="sweep">\n<tr>{head}</tr>\n{rows}</table>\n{notes}'
 
 
 def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:

@@ -2,7 +2,9 @@
 
 Each calc statement is typeset from its tree (as written), then its recorded value; steps
 that cannot be typeset (errors, skipped, kinds without a math form) are shown as sheet text
-with their record. Output is deterministic byte for byte (no dates, no paths).
+with their record. Plots are drawn with pgfplots from their data (loaded only when the
+sheet has one), tables become ``tabular``. Output is deterministic byte for byte (no dates,
+no paths).
 """
 
 from __future__ import annotations
@@ -21,6 +23,8 @@ from worksheet.export.latex_math import (
 from worksheet.export.latex_notes import code_lines_latex, note_latex
 from worksheet.export.latex_text import escape_text, texttt
 from worksheet.export.latex_units import unit_latex, unit_text_latex
+from worksheet.export.pgf_plot import PACKAGES as PLOT_PACKAGES
+from worksheet.export.pgf_plot import plot_pgfplots, title_latex
 from worksheet.export.report import (
     CellItem,
     NoteItem,
@@ -29,6 +33,7 @@ from worksheet.export.report import (
     value_text,
     written_with_verb,
 )
+from worksheet.export.sweep_table import SweepTable, is_number, read_table_record
 from worksheet.syntax import parse_expression
 from worksheet.syntax import tree as t
 from worksheet.syntax.unparse import to_text
@@ -41,6 +46,10 @@ PREAMBLE = (
     "\\usepackage{siunitx}\n"
 )
 FRAGMENT_HEADER = "% worksheet export; needs \\usepackage{amsmath,amssymb,siunitx} (siunitx v3)\n"
+PLOT_FRAGMENT_HEADER = (
+    "% worksheet export; needs \\usepackage{amsmath,amssymb,siunitx} (siunitx v3)\n"
+    "% and, for its plots, \\usepackage{pgfplots}\\pgfplotsset{compat=1.16}\n"
+)
 
 
 @dataclass(frozen=True)
@@ -53,10 +62,12 @@ class _MathLine:
 def latex_document(report: Report, standalone: bool = True) -> str:
     """The whole export as LaTeX source."""
     body = latex_body(report)
+    plots = has_plots(report)
     if not standalone:
-        return FRAGMENT_HEADER + body
+        return (PLOT_FRAGMENT_HEADER if plots else FRAGMENT_HEADER) + body
     return (
         PREAMBLE
+        + (PLOT_PACKAGES if plots else "")
         + "\\begin{document}\n\n"
         + "{\\centering\\LARGE "
         + escape_text(report.title)
@@ -67,6 +78,11 @@ def latex_document(report: Report, standalone: bool = True) -> str:
         + body
         + "\\end{document}\n"
     )
+
+
+def has_plots(report: Report) -> bool:
+    """Whether pgfplots is needed (only then is it loaded, so other sheets need no more)."""
+    return any(step.result.plot is not None and step.result.status == "ok" for step in report.steps)
 
 
 def latex_body(report: Report) -> str:
@@ -100,16 +116,29 @@ def cell_latex(steps: tuple[Step, ...], digits: int) -> str:
     """One calc cell: runs of typeset steps in ``align*``, other steps as text between."""
     out: list[str] = []
     pending: list[_MathLine] = []
+    notes: list[Step] = []
     for step in steps:
         line = step_math(step, digits)
         if line is not None:
             pending.append(line)
+            if step.result.status == "ok" and step.result.message:
+                notes.append(step)
             continue
-        out.append(_align(pending))
-        pending = []
+        out.append(_align(pending) + _notes(notes))
+        pending, notes = [], []
         out.append(step_text(step))
-    out.append(_align(pending))
+    out.append(_align(pending) + _notes(notes))
     return "".join(out)
+
+
+def _notes(steps: list[Step]) -> str:
+    """What the engine noted about results shown as equations (precision loss, ...)."""
+    return "".join(
+        f"\\noindent\\emph{{Line {step.source.line}:}} "
+        + escape_text(step.result.message or "")
+        + "\n\n"
+        for step in steps
+    )
 
 
 def _align(lines: list[_MathLine]) -> str:
@@ -200,7 +229,37 @@ def step_text(step: Step) -> str:
         return head + ": " + escape_text(result.message) + "\n\n"
     if not lines:
         return head + "\n\n"
+    if result.kind == "plot" and result.plot is not None:
+        return head + "\n" + plot_pgfplots(result.plot)
+    if result.kind == "table":
+        table = read_table_record(result.record)
+        if table is not None:
+            return head + "\n" + sweep_table_latex(table)
+    if len(lines) == 1:
+        # One line (scaling, estimate, ...): breakable at spaces, so it stays on the page.
+        return head + "\\\\\n" + texttt(lines[0], keep_spaces=False) + "\n\n"
     return head + "\n" + code_lines_latex(lines)
+
+
+def _cell_latex(cell: str) -> str:
+    return "\\num{" + cell + "}" if is_number(cell) else texttt(cell)
+
+
+def sweep_table_latex(table: SweepTable) -> str:
+    """A sweep as a real ``tabular``: names and units typeset, numbers right-aligned."""
+    head = " & ".join(title_latex(c.name, c.unit) for c in table.columns) + " \\\\"
+    rows = [" & ".join(_cell_latex(cell) for cell in row) + " \\\\" for row in table.rows]
+    notes = "".join(escape_text(note) + "\n\n" for note in table.notes)
+    return (
+        "\\begin{center}\n\\begin{tabular}{"
+        + "r" * len(table.columns)
+        + "}\n\\hline\n"
+        + head
+        + "\n\\hline\n"
+        + "\n".join(rows)
+        + "\n\\hline\n\\end{tabular}\n\\end{center}\n\n"
+        + notes
+    )
 
 
 def _claims_table(report: Report) -> str:

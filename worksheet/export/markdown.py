@@ -1,5 +1,9 @@
 """The Markdown report: the sheet's notes as written, each step with what it recorded, the
-claims and the constants used, in plain CommonMark with pipe tables."""
+claims and the constants used, in plain CommonMark with pipe tables.
+
+A plot keeps its text chart (a fenced block), so the report stays one self-contained file;
+``worksheet export --to svg`` writes pictures to put beside it. A sweep table becomes a
+pipe table inside its step's list item."""
 
 from __future__ import annotations
 
@@ -7,6 +11,7 @@ import re
 
 from worksheet import CAUTION
 from worksheet.export.report import CellItem, NoteItem, Report, Step
+from worksheet.export.sweep_table import SweepTable, read_table_record
 
 _SPECIAL = re.compile(r"([\\`*_{}\[\]<>#|!~&])")
 _BACKTICKS = re.compile(r"`+")
@@ -89,10 +94,36 @@ def step_markdown(step: Step) -> str:
     lines = result.record.split("\n") if result.record else []
     if not lines:
         return head + "\n"
+    if result.kind == "plot":
+        return f"{head} →\n\n{_fenced(lines[1:])}\n"
+    if result.kind == "table" and (table := read_table_record(result.record)) is not None:
+        return f"{head} →\n\n{sweep_table_markdown(table)}\n"
     if len(lines) == 1:
         return f"{head} → {code_span(lines[0])}\n"
     block = "".join("      " + line + "\n" for line in lines)
     return f"{head} →\n\n{block}\n"
+
+
+def _fenced(lines: list[str], indent: str = "  ") -> str:
+    """A text chart as a fenced block inside the list item (a longer fence than any inside)."""
+    longest = max((len(run) for line in lines for run in _BACKTICKS.findall(line)), default=0)
+    fence = "`" * max(3, longest + 1)
+    body = "".join(indent + line + "\n" if line else "\n" for line in lines)
+    return f"{indent}{fence}text\n{body}{indent}{fence}\n"
+
+
+def sweep_table_markdown(table: SweepTable, indent: str = "  ") -> str:
+    """A sweep as a pipe table inside the list item, numbers right-aligned."""
+    head = " | ".join(
+        _code_cell(c.name) + (" \\[" + _cell(c.unit) + "\\]" if c.unit else "")
+        for c in table.columns
+    )
+    rule = "|".join("---:" for _ in table.columns)
+    rows = "".join(
+        indent + "| " + " | ".join(_cell(cell) for cell in row) + " |\n" for row in table.rows
+    )
+    notes = "".join(f"\n{indent}{escape_markdown(note)}\n" for note in table.notes)
+    return f"{indent}| {head} |\n{indent}|{rule}|\n{rows}{notes}"
 
 
 def _claims_table(report: Report) -> str:
