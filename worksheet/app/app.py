@@ -10,6 +10,7 @@ import dataclasses
 from collections import Counter
 from collections.abc import Callable, Iterable
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from rich.text import Text
 from textual import on, work
@@ -20,8 +21,8 @@ from textual.timer import Timer
 from textual.widgets import Footer, Static, TextArea
 from textual.worker import get_current_worker
 
-from worksheet.app.evaluation import RunOutcome, RunService
 from worksheet.app.keys import KEY_ACTIONS, app_bindings
+from worksheet.app.lazy_service import LazyRunService
 from worksheet.app.recovery import newer_recovery, remove_recovery, write_recovery
 from worksheet.app.screens.choice import ChoiceScreen
 from worksheet.app.screens.finder import ConstantFinder
@@ -41,11 +42,13 @@ from worksheet.app.widgets.links import QuantityLinks
 from worksheet.app.widgets.note_cell import NoteCellView
 from worksheet.app.widgets.sheet_view import SheetView
 from worksheet.app.widgets.status_line import StatusLine
-from worksheet.constants import DEFAULT_DATASET, load_dataset
+from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET, load_dataset
 from worksheet.document import atomic_write_text, parse_document, render_document
-from worksheet.engine import StatementResult
 from worksheet.errors import WorksheetError
-from worksheet.runner import read_settings
+
+if TYPE_CHECKING:  # the engine is imported by the first run, after the first paint
+    from worksheet.app.evaluation import RunOutcome
+    from worksheet.engine import StatementResult
 
 # Actions that stay available while a dialog is open.
 DIALOG_ACTIONS = frozenset({"leave"})
@@ -78,7 +81,7 @@ class WorksheetApp(App[int]):
             self.CSS = stylesheet
         self.sheet_path = Path(path)
         self.requested_theme = theme
-        self.service = RunService()
+        self.service = LazyRunService()
         self.session: SheetSession | None = None
         self.outcome: RunOutcome | None = None
         self.theme_names: list[str] = []
@@ -232,14 +235,18 @@ class WorksheetApp(App[int]):
         self._generation += 1
         self.say("computing ...")
         # A run going on for long (a verb in its budget) would hold this one back.
-        if self.service.give_up_slow_run(self.GIVE_UP_AFTER):
+        service = self.service.started
+        if service is not None and service.give_up_slow_run(self.GIVE_UP_AFTER):
             self._notice = "gave up a slow run for the newer edit"
         self._evaluate(self.session.doc, self._generation)
 
     @work(thread=True, exclusive=True, group="evaluate", exit_on_error=False)
     def _evaluate(self, doc: object, generation: int) -> None:
         worker = get_current_worker()
-        outcome = self.service.run(doc, lambda: worker.is_cancelled)  # type: ignore[arg-type]
+        service = self.service.get()  # the first run imports the engine here
+        if service is None:
+            return
+        outcome = service.run(doc, lambda: worker.is_cancelled)  # type: ignore[arg-type]
         if outcome is None or worker.is_cancelled or self._closed:
             return
         # The app may have closed while the run was going on: then nobody needs the result.
@@ -347,10 +354,10 @@ class WorksheetApp(App[int]):
 
     def action_find_constant(self) -> None:
         target = self.focused if isinstance(self.focused, TextArea) else None
-        dataset_name = DEFAULT_DATASET
-        if self.session is not None:
-            with contextlib.suppress(WorksheetError):  # a bad key is reported by the run
-                dataset_name = read_settings(self.session.doc).dataset
+        # The front matter's dataset, read as the runner reads it (a bad name is reported
+        # by the run); the runner itself is not imported here, it would load the engine.
+        pinned = self.session.doc.get("constants") if self.session is not None else None
+        dataset_name = pinned if pinned is not None and pinned in DATASET_NAMES else DEFAULT_DATASET
 
         def insert(text: str | None) -> None:
             if text is None:
@@ -492,8 +499,10 @@ class WorksheetApp(App[int]):
     @work(thread=True, group="save", exit_on_error=False)
     def _save(self, doc: object, then_quit: bool) -> None:
         outcome = None
-        for _ in range(3):  # a run given up for a newer edit gives None: save still wanted
-            outcome = self.service.run(doc)  # type: ignore[arg-type]
+        service = self.service.get()
+        for _ in range(3 if service is not None else 0):
+            # A run given up for a newer edit gives None: the save is still wanted.
+            outcome = service.run(doc)  # type: ignore[union-attr, arg-type]
             if outcome is not None or self._closed:
                 break
         problem = None

@@ -3,36 +3,14 @@
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
 
+from worksheet.app.quantity_row import QuantityRow
 from worksheet.engine import SourceStatement, StatementResult
 from worksheet.engine.bindings import Binding, Origin
 from worksheet.engine.formatting import format_number, format_uncertainty
 from worksheet.errors import WorksheetError
 from worksheet.syntax import parse_statement
 from worksheet.syntax.names import referenced_names
-
-
-@dataclass(frozen=True)
-class QuantityRow:
-    """One line of the quantity ledger; ``line`` is None for a constant of the dataset."""
-
-    name: str
-    value: str
-    unit: str
-    dimension: str
-    origin: str
-    line: int | None
-    reads: tuple[tuple[str, int], ...]  # (name, line of its definition)
-    read_by: tuple[int, ...]  # lines of statements that use it
-    uncertainty: str = ""  # standard uncertainty in the row's unit; "" when none, "exact"
-    source: str = ""  # where a constant's value is published
-
-    @property
-    def shown_value(self) -> str:
-        """``value +- uncertainty unit`` as the ledger shows it (the sheet's own ``+-``)."""
-        spread = f" +- {self.uncertainty}" if self.uncertainty not in ("", "exact") else ""
-        return f"{self.value}{spread} {self.unit}".strip()
 
 
 def statement_names(statements: Sequence[SourceStatement]) -> dict[int, frozenset[str]]:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from collections.abc import Iterable
+from typing import TYPE_CHECKING
 
 from rich.text import Text
 from textual import on
@@ -13,7 +14,9 @@ from textual.widgets import Static, TextArea
 
 from worksheet.app.widgets.calc_editor import CalcEditor
 from worksheet.app.widgets.result_lines import ResultLines
-from worksheet.engine import StatementResult
+
+if TYPE_CHECKING:  # the engine loads after the first paint
+    from worksheet.engine import StatementResult
 
 
 class CalcCellView(Vertical):

@@ -10,7 +10,7 @@ from textual.message import Message
 from textual.widgets import DataTable
 from textual.widgets.data_table import ColumnKey
 
-from worksheet.app.quantities import QuantityRow
+from worksheet.app.quantity_row import QuantityRow
 
 COLUMNS = ("name", "value", "dimension", "origin")
 

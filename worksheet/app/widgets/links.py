@@ -8,7 +8,7 @@ from textual.message import Message
 from textual.widgets import OptionList
 from textual.widgets.option_list import Option
 
-from worksheet.app.quantities import QuantityRow
+from worksheet.app.quantity_row import QuantityRow
 
 
 class QuantityLinks(OptionList):

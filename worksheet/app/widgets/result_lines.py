@@ -3,11 +3,13 @@
 from __future__ import annotations
 
 from collections.abc import Iterable
+from typing import TYPE_CHECKING
 
 from textual.content import Content
 from textual.widgets import Static
 
-from worksheet.engine import StatementResult
+if TYPE_CHECKING:  # the engine loads after the first paint
+    from worksheet.engine import StatementResult
 
 # The word shown before each result, by status (colour comes from the theme on top).
 STATUS_WORDS = {

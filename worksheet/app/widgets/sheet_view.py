@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from textual.containers import VerticalScroll
 from textual.widget import Widget
 
@@ -9,8 +11,10 @@ from worksheet.app.session import editor_text
 from worksheet.app.widgets.calc_cell import CalcCellView
 from worksheet.app.widgets.note_cell import NoteCellView
 from worksheet.document import CalcCell, SheetDocument
-from worksheet.engine import StatementResult
-from worksheet.runner import SheetRun
+
+if TYPE_CHECKING:  # the engine loads after the first paint
+    from worksheet.engine import StatementResult
+    from worksheet.runner import SheetRun
 
 CellView = CalcCellView | NoteCellView
 

@@ -1,0 +1,47 @@
+"""The run service, made on first use in a worker thread.
+
+Importing the engine (sympy, numpy, pint) takes longer than drawing the first screen, and
+the first screen needs none of it: so the app holds this stand-in, and the first run, in
+its worker thread, imports the engine and makes the service.
+"""
+
+from __future__ import annotations
+
+import threading
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from worksheet.app.evaluation import RunService
+
+
+class LazyRunService:
+    """Makes the ``RunService`` once, from any thread; none is made after ``close``."""
+
+    def __init__(self) -> None:
+        self._service: RunService | None = None
+        self._lock = threading.Lock()
+        self._closed = False
+
+    @property
+    def started(self) -> RunService | None:
+        """The service if it has been made (never imports the engine)."""
+        return self._service
+
+    def get(self) -> RunService | None:
+        """The service, importing the engine the first time; None once closed."""
+        with self._lock:
+            if self._closed:
+                return None
+            if self._service is None:
+                from worksheet.app.evaluation import RunService
+
+                self._service = RunService()
+            return self._service
+
+    def close(self) -> None:
+        """Stop the service's worker processes, if it was ever made (idempotent)."""
+        with self._lock:
+            self._closed = True
+            service = self._service
+        if service is not None:
+            service.close()
