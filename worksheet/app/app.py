@@ -23,6 +23,7 @@ from textual.worker import get_current_worker
 
 from worksheet.app.keys import KEY_ACTIONS, app_bindings
 from worksheet.app.lazy_service import LazyRunService
+from worksheet.app.pauses import settle_long_lived
 from worksheet.app.recovery import newer_recovery, remove_recovery, write_recovery
 from worksheet.app.screens.choice import ChoiceScreen
 from worksheet.app.screens.finder import ConstantFinder
@@ -191,7 +192,8 @@ class WorksheetApp(App[int]):
             return
         title = self.session.doc.get("title") or self.sheet_path.name
         mark = "  * unsaved edits" if self.session.dirty else ""
-        self.query_one("#title", Static).update(Text(f"{title}  ({self.sheet_path.name}){mark}"))
+        text = Text(f"{title}  ({self.sheet_path.name}){mark}")
+        self.query_one("#title", Static).update(text, layout=False)  # one line high
 
     async def _show_document(
         self, focus: int | None, cursor: tuple[int, int] | None = None, run: bool = True
@@ -257,7 +259,10 @@ class WorksheetApp(App[int]):
         """Show one run's results, unless a newer run has started since."""
         if generation != self._generation or self.session is None:
             return
+        first = self.outcome is None
         self.outcome = outcome
+        if first:
+            settle_long_lived()
         if outcome.run is None:
             for view in self.sheet.cells():
                 if isinstance(view, CalcCellView):

@@ -13,7 +13,8 @@ from textual.message import Message
 from textual.widgets import Static, TextArea
 
 from worksheet.app.widgets.calc_editor import CalcEditor
-from worksheet.app.widgets.result_lines import ResultLines
+from worksheet.app.widgets.plot_chart import PlotChart
+from worksheet.app.widgets.result_lines import PlotPart, ResultLines, result_parts
 
 if TYPE_CHECKING:  # the engine loads after the first paint
     from worksheet.engine import StatementResult
@@ -38,11 +39,12 @@ class CalcCellView(Vertical):
         self.index = index
         self.first_line = first_line
         self._initial = text
+        self._results: list[ResultLines | PlotChart] = [ResultLines()]
 
     def compose(self) -> ComposeResult:
         yield Static(self._header(), classes="cell-header")
         yield CalcEditor(self._initial)
-        yield ResultLines()
+        yield self._results[0]
 
     blank = False  # only blank notes are hidden
 
@@ -58,14 +60,50 @@ class CalcCellView(Vertical):
         event.stop()
         self.post_message(self.Edited(self.index, event.text_area.text))
 
+    def _result_widgets(self) -> list[ResultLines | PlotChart]:
+        # Kept by hand: a removed widget can stay among the children for a moment.
+        return list(self._results)
+
     def show_results(self, results: list[StatementResult]) -> None:
-        self.query_one(ResultLines).show(results)
+        """Text lines with a chart in place of each plot's text chart.
+
+        The widgets are updated in place while the cell's sequence of text and plots stays
+        the same (the usual case while typing); otherwise the ones after the first are
+        replaced.
+        """
+        parts = result_parts(results)
+        widgets = self._result_widgets()
+        kinds = [isinstance(part, PlotPart) for part in parts]
+        if kinds != [isinstance(widget, PlotChart) for widget in widgets]:
+            for widget in widgets[1:]:
+                widget.remove()
+            fresh: list[ResultLines | PlotChart] = [
+                PlotChart(part.data, part.chart_lines) if isinstance(part, PlotPart)
+                else ResultLines() for part in parts[1:]]
+            if fresh:
+                self.mount_all(fresh)
+            widgets = [widgets[0], *fresh]
+            self._results = widgets
+        for widget, part in zip(widgets, parts, strict=True):
+            if isinstance(widget, PlotChart) and isinstance(part, PlotPart):
+                widget.show(part.data, part.chart_lines)
+            elif isinstance(widget, ResultLines) and not isinstance(part, PlotPart):
+                widget.show_lines(part)
+
+    def _only_lines(self) -> ResultLines:
+        """The first result widget, the others removed (for placeholders)."""
+        first, *rest = self._result_widgets()
+        for widget in rest:
+            widget.remove()
+        assert isinstance(first, ResultLines)
+        self._results = [first]
+        return first
 
     def show_waiting(self, message: str) -> None:
-        self.query_one(ResultLines).show_waiting(message)
+        self._only_lines().show_waiting(message)
 
     def show_recorded(self, lines: Iterable[str]) -> None:
-        self.query_one(ResultLines).show_recorded(lines)
+        self._only_lines().show_recorded(lines)
 
     def place(self, index: int, first_line: int) -> None:
         """Update where the cell sits after edits elsewhere in the sheet."""

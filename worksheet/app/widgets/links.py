@@ -21,7 +21,13 @@ class QuantityLinks(OptionList):
             super().__init__()
             self.line = line
 
+    _shown: QuantityRow | bool | None = False  # False: nothing shown yet
+
     def show(self, row: QuantityRow | None) -> None:
+        """Show the links of ``row``; unchanged links are left alone (no relayout)."""
+        if self._shown is not False and row == self._shown:
+            return
+        self._shown = row
         self.clear_options()
         if row is None:
             self.add_option(Option(Text("choose a quantity in the ledger"), disabled=True))

@@ -3,10 +3,14 @@
 from __future__ import annotations
 
 from collections.abc import Iterable
+from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
+from rich.cells import cell_len
 from textual.content import Content
 from textual.widgets import Static
+
+from worksheet.app.chart_canvas import PlotLike
 
 if TYPE_CHECKING:  # the engine loads after the first paint
     from worksheet.engine import StatementResult
@@ -53,6 +57,40 @@ def result_line(result: StatementResult) -> Line:
     return result.status, f"{word:<7} {result_text(result)}"
 
 
+@dataclass(frozen=True)
+class PlotPart:
+    """A plot among a cell's results: its data and the text chart lines recorded for it."""
+
+    data: PlotLike
+    chart_lines: tuple[str, ...]
+
+
+Part = tuple[Line, ...] | PlotPart
+
+
+def result_parts(results: Iterable[StatementResult]) -> list[Part]:
+    """A cell's results as runs of text lines with plots between them, in order.
+
+    A plot's first recorded line (``plot ...:``) stays with the text; the chart replaces
+    the text chart's lines beneath it.
+    """
+    parts: list[Part] = []
+    lines: list[Line] = []
+    for result in results:
+        data = getattr(result, "plot", None)
+        if result.kind == "plot" and data is not None and result.record:
+            head, *chart = result.record.split("\n")
+            word = STATUS_WORDS.get(result.status, result.status.upper())
+            lines.append((result.status, f"{word:<7} {head}"))
+            parts.extend([tuple(lines), PlotPart(data, tuple(chart))])
+            lines = []
+        else:
+            lines.append(result_line(result))
+    if lines or not parts:
+        parts.append(tuple(lines))
+    return parts
+
+
 class ResultLines(Static):
     """The lines of one cell's results in one widget (a widget a line slows long sheets).
 
@@ -74,7 +112,10 @@ class ResultLines(Static):
 
     def show(self, results: Iterable[StatementResult]) -> None:
         """Show the results (sheet text is never read as markup, so [kg] stays visible)."""
-        lines = tuple(result_line(result) for result in results)
+        self.show_lines(tuple(result_line(result) for result in results))
+
+    def show_lines(self, lines: tuple[Line, ...]) -> None:
+        """Show lines made by ``result_line`` (a placeholder when there are none)."""
         self._show_lines(lines or (("empty", "(nothing to record)"),))
 
     def show_recorded(self, recorded: Iterable[str]) -> None:
@@ -95,5 +136,11 @@ class ResultLines(Static):
                 parts.append("\n")
             parts.append((text, LINE_STYLES.get(kind, "")))
         self.set_classes(" ".join(sorted({f"-{kind}" for kind, _ in lines})))
-        self.update(Content.assemble(*parts))
+        # A relayout of the sheet costs milliseconds per cell: ask for one only when the
+        # height can change (another number of lines, or a changed line too long to fit).
+        width = self.content_size.width
+        changed = [text for _kind, text in set(lines) ^ set(self._shown)]
+        layout = (width <= 0 or len(lines) != len(self._shown)
+                  or any("\n" in text or cell_len(text) >= width for text in changed))
+        self.update(Content.assemble(*parts), layout=layout)
         self._shown = lines

@@ -15,4 +15,4 @@ class StatusLine(Static):
 
     def say(self, message: str, problem: bool = False) -> None:
         self.set_class(problem, "-problem")
-        self.update(Text(message))
+        self.update(Text(message), layout=False)  # one line high: no relayout of the sheet
