@@ -7,8 +7,10 @@ built in-process on first use (no disk cache: pint's cache is pickle).
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
+from decimal import Decimal
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
@@ -34,6 +36,20 @@ class ResolvedUnit:
     @property
     def is_offset(self) -> bool:
         return self.offset != 0.0
+
+
+SI_PREFIXES: dict[str, int] = {
+    "q": -30, "r": -27, "y": -24, "z": -21, "a": -18, "f": -15, "p": -12, "n": -9,
+    "u": -6, "\u00b5": -6, "m": -3, "c": -2, "d": -1, "da": 1, "h": 2, "k": 3, "M": 6,
+    "G": 9, "T": 12, "P": 15, "E": 18, "Z": 21, "Y": 24, "R": 27, "Q": 30,
+}  # fmt: skip
+"""The SI prefixes and their powers of ten (SI Brochure, 9th edition 2019, Table 7, with
+the four prefixes added by the CGPM in 2022)."""
+
+PREFIXABLE_DATASET_UNITS = ("au", "pc", "ly", "yr", "Jy")
+"""Dataset units that take SI prefixes (kpc, Mpc, mJy, Myr): the prefixed unit is the
+prefix times the dataset's own definition, never pint's (pint's parsec is au/tan(1 arcsec),
+7.8e-12 off the IAU 2015 B2 value). Masses such as M_sun take no prefix."""
 
 
 def _clean(value: float) -> float:
@@ -79,6 +95,9 @@ class UnitRegistry:
             base = self.resolve(parse_unit(astro.unit)) if astro.unit not in ("", "1") else None
             dimension = base.dimension if base else Dimension()
             return ResolvedUnit(name, astro.si_value, dimension, origin=astro.source)
+        prefixed = self._prefixed_dataset_unit(name)
+        if prefixed is not None:
+            return prefixed
         ureg = self._pint_registry()
         import pint
 
@@ -110,6 +129,18 @@ class UnitRegistry:
         factor = _clean(float(ureg.Quantity(1.0, unit).to_base_units().magnitude))
         return ResolvedUnit(name, factor, dimension, origin="pint")
 
+    def _prefixed_dataset_unit(self, name: str) -> ResolvedUnit | None:
+        """``kpc``, ``Mpc``, ``mJy``: an SI prefix on a dataset unit, from the dataset's value."""
+        for symbol in PREFIXABLE_DATASET_UNITS:
+            power = SI_PREFIXES.get(name.removesuffix(symbol)) if name.endswith(symbol) else None
+            astro = self.dataset.units.get(symbol)
+            if power is None or astro is None:
+                continue
+            base = self.named(symbol)
+            factor = float(Decimal(astro.value).scaleb(power))  # correctly rounded
+            return ResolvedUnit(name, factor, base.dimension, origin=astro.source)
+        return None
+
     def resolve(
         self, unit: UnitExpr, line: int | None = None, column: int | None = None
     ) -> ResolvedUnit:
@@ -140,6 +171,8 @@ class UnitRegistry:
                     column,
                 )
             resolved = parts[0]
+        elif len(parts) == 1 and unit.factors[0][1] == 1 and unit.scale == 1:
+            resolved = dataclasses.replace(parts[0], source=unit.source)  # no re-rounding
         else:
             resolved = ResolvedUnit(unit.source, _clean(factor), dimension)
         self._units[unit.source] = resolved
