@@ -10,6 +10,7 @@ disagreement above ``LOSS_TOLERANCE`` (cancellation, overflow, underflow).
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
@@ -82,7 +83,9 @@ class SymbolValues(Mapping):
             if self.kind == "float":
                 return unit
             if self.kind == "dual":
-                return Dual(unit, _through_g(symbol.name.strip("[]"), unit, self.ctx))
+                return Dual(
+                    unit, _g_seed(unit_g_power(symbol.name[1:-1], self.ctx), unit, self.ctx)
+                )
             return _MP.mp.mpf(unit)
         constant = self.ctx.constants.get(symbol.name)
         if constant is None or constant.symbol != symbol or constant.value is None:
@@ -90,7 +93,7 @@ class SymbolValues(Mapping):
         if self.kind == "float":
             return constant.value
         if self.kind == "dual":
-            seed = _through_g(symbol.name, constant.value, self.ctx)
+            seed = _g_seed(name_g_power(symbol.name, self.ctx), constant.value, self.ctx)
             if not seed and constant.uncertainty:
                 seed = {symbol.name: 1.0}
             return Dual(constant.value, seed)
@@ -103,18 +106,37 @@ class SymbolValues(Mapping):
         return len(self.sheet)
 
 
-def _through_g(name: str, value: float, ctx: Context) -> dict[str, float]:
-    """Masses defined as GM/G (M_sun, M_earth, M_jup) carry G's uncertainty, correlated.
+PLANCK_G_POWERS = {
+    "l_P": Fraction(1, 2),
+    "t_P": Fraction(1, 2),
+    "m_P": Fraction(-1, 2),
+    "T_P": Fraction(-1, 2),
+}
+"""l_P = sqrt(hbar G/c^3), t_P = sqrt(hbar G/c^5), m_P = sqrt(hbar c/G), T_P = m_P c^2/k_B
+(CODATA's definitions): with hbar, c, k_B exact, their uncertainty is all G's."""
 
-    The nominal GM values are exact (IAU 2015 B3), so d(M)/d(G) = -M/G and nothing else; a
-    product G*M_sun then has no uncertainty at all, as it should.
+
+def name_g_power(name: str, ctx: Context) -> Fraction:
+    """The power of G in a constant's (or a dataset unit's) value.
+
+    Masses defined as GM/G (M_sun, M_earth, M_jup) go as G^-1: the nominal GM values are
+    exact (IAU 2015 B3), so their whole uncertainty is G's, correlated with every other G.
+    The Planck units go as G^(+-1/2) (``PLANCK_G_POWERS``).
     """
-    if not name.startswith("M_") or f"GM_{name[2:]}" not in ctx.constants:
-        return {}
+    if name.startswith("M_") and f"GM_{name[2:]}" in ctx.constants:
+        return Fraction(-1)
+    return PLANCK_G_POWERS.get(name, Fraction(0))
+
+
+def _g_seed(power: Fraction, value: float, ctx: Context) -> dict[str, float]:
+    """d(value)/dG for a value that goes as G^power and depends on nothing else uncertain.
+
+    A product G*M_sun then has no uncertainty at all, as it should.
+    """
     g = ctx.constants.get("G")
-    if g is None or not g.value or not g.uncertainty:
+    if not power or g is None or not g.value or not g.uncertainty:
         return {}
-    return {"G": -value / g.value}
+    return {"G": float(power) * value / g.value}
 
 
 def _float_value(expr: sympy.Expr, values: Mapping) -> float | None:
@@ -142,7 +164,7 @@ def _has_uncertain_inputs(
                 return True
             continue
         if symbol in ctx.unit_values:
-            if _through_g(symbol.name.strip("[]"), 1.0, ctx):
+            if _g_seed(unit_g_power(symbol.name[1:-1], ctx), 1.0, ctx):
                 return True
             continue
         constant = ctx.constants.get(symbol.name)
@@ -247,15 +269,24 @@ def relative_uncertainty_note(value: float, uncertainty: float | None) -> str | 
 
 
 def unit_g_power(unit: str, ctx: Context) -> Fraction:
-    """The power of G in a unit's SI factor: [M_sun] = GM_sun/G goes as G^-1."""
+    """The power of G in a unit's SI factor: [M_sun] = GM_sun/G goes as G^-1, and
+    [M_sun/yr] too; [pc] as G^0."""
+    return sum(
+        (power * name_g_power(name, ctx) for name, power in _unit_factors(unit)),
+        start=Fraction(0),
+    )
+
+
+@functools.lru_cache(maxsize=4096)
+def _unit_factors(unit: str) -> tuple[tuple[str, Fraction], ...]:
+    """The (name, power) factors of bracket text; none when it does not parse."""
     from worksheet.errors import WorksheetError
     from worksheet.syntax.units import parse_unit
 
     try:
-        factors = parse_unit(unit).factors
+        return tuple(parse_unit(unit).factors)
     except WorksheetError:
-        return Fraction(0)
-    return -sum((p for name, p in factors if _through_g(name, 1.0, ctx)), start=Fraction(0))
+        return ()
 
 
 def in_unit_uncertainty(

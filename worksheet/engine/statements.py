@@ -161,6 +161,14 @@ class StatementEvaluator:
             return binding.uncertainty or 0.0
         return binding.input_uncertainty or 0.0
 
+    def _own_input_uncertainty(self, binding: Binding | None) -> Callable[[str], float]:
+        """Input uncertainties, including the one a definition states for itself (its
+        binding is not visible to ``lookup`` until the statement is done)."""
+        if binding is None or binding.input_uncertainty is None:
+            return self._input_uncertainty
+        own, stated = binding.name, binding.input_uncertainty
+        return lambda key: stated if key == own else self._input_uncertainty(key)
+
     def quantity(self, tr: Translator, node: t.Expr) -> Quantity:
         """Translate and, where every name has a value, compute the SI number."""
         lone = _lone_unit_value(node)
@@ -284,8 +292,8 @@ class StatementEvaluator:
         unit, factor, offset = self.output_unit(quantity, stmt.conversion, stmt)
         stated = self._uncertainty(stmt, quantity, tr)
         figures = quantity.figures
-        if stated is not None:  # a stated uncertainty makes the value an independent input
-            gradient, uncertainty = {stmt.name: 1.0}, stated
+        if stated is not None:
+            gradient, uncertainty = _stated_gradient(stmt.name, stated, figures, origin)
         else:
             gradient, uncertainty = dict(figures.gradient), figures.uncertainty
         symbol = symbol_for(
@@ -366,7 +374,7 @@ class StatementEvaluator:
                 uncertainty or 0.0,
                 g_power,
                 self.ctx,
-                self._input_uncertainty,
+                self._own_input_uncertainty(binding),
             )
         if uncertainty:
             shown_u = uncertainty / factor
@@ -705,6 +713,24 @@ class StatementEvaluator:
                 stmt.line,
             )
         return bool(sign), f"{format_expr(lhs)} {stmt.op} {format_expr(rhs)} is false"
+
+
+def _stated_gradient(
+    name: str, stated: float, figures: Figures, origin: Origin
+) -> tuple[dict[str, float], float]:
+    """The gradient and SI uncertainty of a definition with a stated ``+- u``.
+
+    The stated u is that of the number as written, an independent input keyed by the
+    name. A given keeps the correlated shares of the units and constants it is written
+    in: ``4.1e6 [M_sun] +- 5%`` is 4.1e6 +- 5% times M_sun = GM_sun/G, so it keeps the
+    derivative in G of M_sun (shown in [M_sun] that share cancels, leaving the 5%; in kg
+    both add in quadrature). A derived value with a stated u is a new independent input.
+    """
+    gradient = {name: 1.0}
+    if origin is not Origin.GIVEN or not figures.gradient:
+        return gradient, stated
+    gradient.update(figures.gradient)
+    return gradient, math.hypot(stated, figures.uncertainty or 0.0)
 
 
 def _with_uncertainty(value_text: str, uncertainty: float) -> str:
