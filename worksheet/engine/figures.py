@@ -180,7 +180,13 @@ def compute_figures(
     input_uncertainty: Callable[[str], float],
 ) -> Figures:
     """All the numbers of ``expr``; raises EvaluationError where none can be had."""
-    value = _float_value(expr, SymbolValues(sheet, ctx, "float"))
+    try:
+        value = _float_value(expr, SymbolValues(sheet, ctx, "float"))
+    except EvaluationError as err:
+        rescued = _rescued_by_guard(expr, sheet, ctx, err)
+        if rescued is None:
+            raise
+        return rescued
     if value is None:
         return Figures(None)
     precise, loss = None, None
@@ -198,6 +204,26 @@ def compute_figures(
         if uncertainty is not None and uncertainty <= ROUNDING_FLOOR * abs(value):
             uncertainty = None  # what is left after exact cancellation is rounding noise
     return Figures(value, precise, gradient, uncertainty, loss)
+
+
+def _rescued_by_guard(
+    expr: sympy.Expr, sheet: Mapping[sympy.Symbol, Binding], ctx: Context, err: EvaluationError
+) -> Figures | None:
+    """Where double precision fails outright (``1/(1 - cos(1e-9))`` divides by a zero left by
+    cancellation), the guard's 50-digit value, when it is a finite non-zero number.
+
+    The uncertainty is not propagated then (the dual walk is double precision too)."""
+    if not ctx.guard or not _may_lose_precision(expr):
+        return None
+    try:
+        precise = evaluate(expr, SymbolValues(sheet, ctx, "mp"), _MP)
+    except (EvaluationError, ValueError, ZeroDivisionError, TypeError):
+        return None
+    mp = _MP.mp
+    if not mp.isfinite(precise) or precise == 0 or abs(mp.mag(precise)) > MAX_RECORDED_BITS:
+        return None
+    reason = f"cancellation; double precision gave no number ({err.message})"
+    return Figures(math.nan, precise, {}, None, reason)
 
 
 def _normal(value: float) -> bool:

@@ -86,6 +86,11 @@ class Backend:
     def add(self, items: list[Any]) -> Any:
         return math.fsum(items) if all(isinstance(x, float) for x in items) else sum(items)
 
+    def log_of_rational(self, value: sympy.Rational) -> Any:
+        """log p/q from the exact integers: math.log takes integers beyond the double range,
+        so log(1e-310) (which sympy writes as -log(10^310)) is no overflow."""
+        return math.log(int(value.p)) - math.log(int(value.q))
+
     def multiply(self, items: list[Any]) -> Any:
         result = items[0]
         for item in items[1:]:
@@ -249,6 +254,9 @@ class MpBackend(Backend):
     def add(self, items: list[Any]) -> Any:
         return self.mp.fsum(items)
 
+    def log_of_rational(self, value: sympy.Rational) -> Any:
+        return self.mp.log(self.number(value))
+
 
 FLOAT = Backend()
 
@@ -284,6 +292,10 @@ def evaluate(expr: sympy.Expr, values: Mapping[sympy.Symbol, Any], backend: Back
         elif node.is_Pow:
             base, exponent = node.args
             result = backend.power(walk(base), walk(exponent))
+        elif node.func is sympy.log and len(node.args) == 1 and node.args[0].is_Rational:
+            if node.args[0] <= 0:
+                raise EvaluationError(f"log({node.args[0]}) is outside its domain")
+            result = backend.log_of_rational(node.args[0])
         elif node.func in table:
             args = [walk(arg) for arg in node.args]
             if node.func is sympy.log and len(args) == 2:
@@ -333,6 +345,9 @@ class DualBackend(Backend):
 
     def number(self, value: sympy.Expr) -> Any:
         return Dual(super().number(value))
+
+    def log_of_rational(self, value: sympy.Rational) -> Any:
+        return Dual(super().log_of_rational(value))
 
     def add(self, items: list[Any]) -> Any:
         return _combine(math.fsum(i.value for i in items), *((1.0, i) for i in items))

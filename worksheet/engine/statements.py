@@ -267,6 +267,12 @@ class StatementEvaluator:
             return f"Planck units, G = hbar = c = k_B = 1: in units of {unit}"
         return None
 
+    def _loss_note(self, figures: Figures, factor: float, offset: float) -> str:
+        if figures.value is None or math.isnan(figures.value):  # the reason says what it gave
+            return f"precision loss: {figures.loss}"
+        double = format_number((figures.value - offset) / factor, self.ctx.digits)
+        return f"precision loss: {figures.loss}; double precision gave {double}"
+
     def _value_text(
         self, quantity: Quantity, unit: str, factor: float, offset: float
     ) -> tuple[str, float]:
@@ -386,8 +392,7 @@ class StatementEvaluator:
         if view:
             notes.insert(0, view)
         if figures.loss is not None:
-            double = format_number((figures.value - offset) / factor, self.ctx.digits)
-            notes.append(f"precision loss: {figures.loss}; double precision gave {double}")
+            notes.append(self._loss_note(figures, factor, offset))
         record = (
             f"{head} = {format_expr(form)} = {value_text}" if verb else f"{head} = {value_text}"
         )
