@@ -28,7 +28,7 @@ from worksheet.engine.formatting import (
 )
 from worksheet.engine.results import StatementResult
 from worksheet.engine.sweeps import evaluate_scaling, evaluate_table
-from worksheet.engine.translate import Translator, Typed, describe
+from worksheet.engine.translate import Translator, Typed, describe, temperature_energy_hint
 from worksheet.engine.views import (
     ENERGY,
     natural_factor,
@@ -628,14 +628,15 @@ class StatementEvaluator:
         left = self.quantity(tr, stmt.left)
         right = self.quantity(tr, stmt.right)
         if left.typed.dim != right.typed.dim and not (left.si == 0 or right.si == 0):
+            hint = temperature_energy_hint(stmt.left, left.typed, stmt.right, right.typed)
             raise DimensionError(
                 f"cannot compare {describe(stmt.left, left.typed)} with "
-                f"{describe(stmt.right, right.typed)}",
+                f"{describe(stmt.right, right.typed)}{hint}",
                 stmt.left.line,
                 stmt.left.column,
             )
         if left.si is not None and right.si is not None:
-            holds, detail = self._numeric_claim(stmt, left.si, right.si, tr, left)
+            holds, detail = self._numeric_claim(stmt, left.si, right.si, tr, left, right)
         else:
             holds, detail = self._symbolic_claim(stmt, left, right, tr)
         status = "ok" if holds else "failed"
@@ -652,13 +653,14 @@ class StatementEvaluator:
         )
 
     def _numeric_claim(
-        self, stmt: t.Check, a: float, b: float, tr: Translator, left: Quantity
+        self, stmt: t.Check, a: float, b: float, tr: Translator, left: Quantity, right: Quantity
     ) -> tuple[bool, str]:
-        unit = left.typed.dim.si_unit()
+        unit, factor, offset = _claim_unit(left, right, left.typed.dim)
         digits = self.ctx.digits
 
         def show(x: float) -> str:
-            return format_number(x, max(digits, 6)) + (f" {unit}" if unit else "")
+            shown = (x - offset) / factor
+            return format_number(shown, max(digits, 6)) + (f" {unit}" if unit else "")
 
         detail = f"left {show(a)}, right {show(b)}"
         op = stmt.op
@@ -718,6 +720,16 @@ class StatementEvaluator:
                 stmt.line,
             )
         return bool(sign), f"{format_expr(lhs)} {stmt.op} {format_expr(rhs)} is false"
+
+
+def _claim_unit(left: Quantity, right: Quantity, dim: Dimension) -> tuple[str, float, float]:
+    """The unit a claim's sides are reported in: the unit written with a lone value on
+    either side (right first: ``check r_s < 3 [km]`` reports both in km), else SI."""
+    for side in (right, left):
+        if side.lone_unit is not None and side.lone_unit.dimension == dim:
+            unit = side.lone_unit
+            return unit.source, unit.factor, unit.offset
+    return dim.si_unit(), 1.0, 0.0
 
 
 def _stated_gradient(

@@ -79,6 +79,30 @@ def describe(node: t.Expr, typed: Typed) -> str:
     return f"{typed.dim.name()} ({to_text(node)}, {unit})"
 
 
+TEMPERATURE = Dimension.of(temperature=1)
+ENERGY = Dimension.of(mass=1, length=2, time=-2)
+
+
+def temperature_energy_hint(
+    left_node: t.Expr, left: Typed, right_node: t.Expr, right: Typed
+) -> str:
+    """A hint where a temperature meets an energy: one of them needs k_B."""
+    pair = {left.dim, right.dim}
+    if pair != {TEMPERATURE, ENERGY}:
+        return ""
+    energy, temperature = (left_node, right_node) if left.dim == ENERGY else (right_node, left_node)
+    return (
+        f"; an energy is a temperature only through k_B: write natural({to_text(energy)}, [K]) "
+        f"for the energy as a temperature, or k_B*{_grouped(temperature)} for the temperature "
+        "as an energy"
+    )
+
+
+def _grouped(node: t.Expr) -> str:
+    text = to_text(node)
+    return text if isinstance(node, t.Name | t.Number | t.Unit | t.Call) else f"({text})"
+
+
 @dataclass
 class Translator:
     """Builds one statement's expression. Collects the sheet names and units it used.
@@ -175,8 +199,10 @@ class Translator:
         if node.op in "+-":
             if left.dim != right.dim and not (_is_zero(left) or _is_zero(right)):
                 verb = "add" if node.op == "+" else "subtract"
+                hint = temperature_energy_hint(node.left, left, node.right, right)
                 raise DimensionError(
-                    f"cannot {verb} {describe(node.left, left)} and {describe(node.right, right)}",
+                    f"cannot {verb} {describe(node.left, left)} and "
+                    f"{describe(node.right, right)}{hint}",
                     node.line,
                     node.column,
                 )
