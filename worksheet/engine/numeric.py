@@ -281,7 +281,8 @@ def evaluate(expr: sympy.Expr, values: Mapping[sympy.Symbol, Any], backend: Back
                 raise MissingValue(node) from None
         elif node.is_Number:
             if node is sympy.nan or node in (sympy.oo, -sympy.oo, sympy.zoo):
-                raise EvaluationError(f"the result is {node} (not a finite number)")
+                spelled = {sympy.oo: "inf", -sympy.oo: "-inf"}.get(node, str(node))
+                raise EvaluationError(f"the result is {spelled} (not a finite number)")
             result = backend.number(node)
         elif isinstance(node, sympy.NumberSymbol):
             result = backend.number(node)

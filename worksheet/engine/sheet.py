@@ -13,7 +13,7 @@ from worksheet.engine.bindings import Binding
 from worksheet.engine.budget import statement_timer
 from worksheet.engine.context import Context
 from worksheet.engine.results import StatementResult
-from worksheet.engine.statements import KINDS, StatementEvaluator
+from worksheet.engine.statements import KINDS, RESERVED_NAMES, StatementEvaluator
 from worksheet.errors import NameResolutionError, WorksheetError
 from worksheet.syntax import parse_statement
 from worksheet.syntax import tree as t
@@ -137,6 +137,19 @@ class SheetEvaluator:
             self._parse_cache[key] = cached
         return cached
 
+    def _claims_name(self, slot: _Slot) -> bool:
+        """Whether a statement takes over its name for the whole sheet.
+
+        A definition of a constant's name (``G = 5``) is refused on its own line; it claims
+        nothing, so the lines above and below it keep meaning the constant. Only a
+        declaration (``G : [m^3/(kg*s^2)]``) makes a constant's name the sheet's own.
+        """
+        if slot.defines is None:
+            return False
+        if isinstance(slot.parsed, t.Declaration):
+            return True
+        return slot.defines not in self.ctx.constants and slot.defines not in RESERVED_NAMES
+
     def run(self, statements: Sequence[SourceStatement]) -> list[StatementResult]:
         """Evaluate all statements (reusing what is unchanged) and return their results."""
         fast = self._run_changed_only(statements)
@@ -163,7 +176,7 @@ class SheetEvaluator:
 
         first_definer: dict[str, int] = {}
         for index, slot in enumerate(slots):
-            if slot.defines is not None and slot.defines not in first_definer:
+            if self._claims_name(slot) and slot.defines not in first_definer:
                 first_definer[slot.defines] = index
 
         visible: dict[str, Binding] = {}

@@ -28,7 +28,13 @@ from worksheet.engine.formatting import (
 )
 from worksheet.engine.results import StatementResult
 from worksheet.engine.sweeps import evaluate_scaling, evaluate_table
-from worksheet.engine.translate import Translator, Typed, describe, temperature_energy_hint
+from worksheet.engine.translate import (
+    INFINITY,
+    Translator,
+    Typed,
+    describe,
+    temperature_energy_hint,
+)
 from worksheet.engine.views import (
     ENERGY,
     natural_factor,
@@ -60,6 +66,8 @@ KINDS = {
     t.Blank: "blank",
 }
 DEFAULT_NUMERIC_TOLERANCE = Fraction(1, 10**9)
+RESERVED_NAMES = frozenset({"pi", INFINITY})
+"""Built-in numbers a sheet cannot define."""
 
 
 @dataclass(frozen=True)
@@ -325,7 +333,14 @@ class StatementEvaluator:
         if origin is Origin.GIVEN:
             binding.local = None
         result = self._quantity_result(
-            stmt, "definition", stmt.name, binding, quantity, (unit, factor, offset), tr.used_verb
+            stmt,
+            "definition",
+            stmt.name,
+            binding,
+            quantity,
+            (unit, factor, offset),
+            tr.used_verb,
+            tuple(tr.numeric_notes),
         )
         return result, binding
 
@@ -338,6 +353,7 @@ class StatementEvaluator:
         quantity: Quantity,
         unit_info: tuple[str, float, float],
         verb: bool,
+        numeric_notes: tuple[str, ...] = (),
     ) -> StatementResult:
         unit, factor, offset = unit_info
         typed = quantity.typed
@@ -391,6 +407,8 @@ class StatementEvaluator:
         view = self._view_note(stmt, dim)
         if view:
             notes.insert(0, view)
+        notes[:0] = numeric_notes
+        verb = verb and not numeric_notes  # a numeric fallback has no symbolic form to show
         if figures.loss is not None:
             notes.append(self._loss_note(figures, factor, offset))
         record = (
@@ -437,11 +455,21 @@ class StatementEvaluator:
         return abs(spread.si)
 
     def _refuse_constant_name(self, name: str, stmt: t.Statement) -> None:
-        existing = self.lookup(name)
-        if name == "pi" or (existing is not None and existing.origin is Origin.CONSTANT):
+        if name in RESERVED_NAMES:
+            meaning = "pi" if name == "pi" else "infinity"
             raise NameResolutionError(
-                f"'{name}' is a constant of the pinned dataset; pick another name, or declare "
-                f"it ({name} : [unit]) to keep it symbolic",
+                f"'{name}' is a built-in constant ({meaning}); choose another name, "
+                f"such as {name}_2",
+                stmt.line,
+                stmt.column,
+            )
+        existing = self.lookup(name)
+        if existing is not None and existing.origin is Origin.CONSTANT:
+            unit = existing.dimension.si_unit() or "1"
+            raise NameResolutionError(
+                f"'{name}' is a constant of the pinned dataset, and other lines keep using it; "
+                f"choose another name for this value (such as {name}_2), or declare the "
+                f"constant ({name} : [{unit}]) above its first use to keep it symbolic",
                 stmt.line,
                 stmt.column,
             )
@@ -621,7 +649,16 @@ class StatementEvaluator:
         tr = self.translator()
         quantity = self.quantity(tr, stmt.expr)
         unit_info = self.output_unit(quantity, stmt.conversion, stmt)
-        return self._quantity_result(stmt, "display", None, None, quantity, unit_info, tr.used_verb)
+        return self._quantity_result(
+            stmt,
+            "display",
+            None,
+            None,
+            quantity,
+            unit_info,
+            tr.used_verb,
+            tuple(tr.numeric_notes),
+        )
 
     def _check(self, stmt: t.Check) -> StatementResult:
         tr = self.translator()

@@ -28,13 +28,15 @@ def integrate(
     variable: sympy.Symbol,
     lower: sympy.Expr | None = None,
     upper: sympy.Expr | None = None,
-) -> sympy.Expr:
+) -> sympy.Expr | None:
+    """The integral, or None when sympy finds no closed form (the caller may fall back to
+    quadrature)."""
     if lower is None:
         result = sympy.integrate(expr, variable)
     else:
         result = sympy.integrate(expr, (variable, lower, upper))
     if result.has(sympy.Integral):
-        raise EvaluationError(f"no closed form found for the integral of {expr}")
+        return None
     if isinstance(result, sympy.Piecewise):
         # With positive symbols the convergent branch is the first; say so if it is not clear.
         first, condition = result.args[0]
@@ -44,9 +46,33 @@ def integrate(
     return sympy.simplify(result)
 
 
-def solve(lhs: sympy.Expr, rhs: sympy.Expr, variable: sympy.Symbol) -> list[sympy.Expr]:
-    roots = sympy.solve(sympy.Eq(lhs, rhs), variable, dict=False)
-    return [sympy.simplify(root) for root in roots if root.is_real is not False]
+def solve(lhs: sympy.Expr, rhs: sympy.Expr, variable: sympy.Symbol) -> list[sympy.Expr] | None:
+    """The real roots, or None when sympy has no method for the equation (the caller may
+    fall back to a numeric root)."""
+    try:
+        roots = sympy.solve(sympy.Eq(lhs, rhs), variable, dict=False)
+    except NotImplementedError:
+        return None
+    return [
+        exponents_out_of_logs(sympy.simplify(root)) for root in roots if root.is_real is not False
+    ]
+
+
+def exponents_out_of_logs(expr: sympy.Expr) -> sympy.Expr:
+    """``log((B/A)^tau)`` as ``tau*log(B/A)``: the form a physicist writes (valid for a
+    positive base and a real exponent, which the symbols' assumptions say)."""
+
+    def is_log_of_power(node: sympy.Expr) -> bool:
+        if not (isinstance(node, sympy.log) and len(node.args) == 1 and node.args[0].is_Pow):
+            return False
+        base, exponent = node.args[0].args
+        return bool(base.is_positive) and bool(exponent.is_real) and not exponent.is_Number
+
+    def pulled(node: sympy.log) -> sympy.Expr:
+        base, exponent = node.args[0].args
+        return exponent * sympy.log(base)
+
+    return expr.replace(is_log_of_power, pulled)
 
 
 def series(expr: sympy.Expr, variable: sympy.Symbol, point: sympy.Expr, order: int) -> sympy.Expr:

@@ -34,6 +34,9 @@ MAX_EXACT_DIGITS = 5000
 
 MAX_DIMENSION_POWER = 1000
 
+INFINITY = "inf"
+"""The name of infinity: a bound of integrate or a point of limit/series, of any dimension."""
+
 FUNCTIONS: dict[str, Callable[..., sympy.Expr]] = {
     "exp": sympy.exp,
     "log": sympy.log,
@@ -122,6 +125,7 @@ class Translator:
     seconds: float
     used: list[str] = field(default_factory=list)
     used_verb: bool = False
+    numeric_notes: list[str] = field(default_factory=list)  # verbs that fell back to numbers
 
     # --- entry point ---
     def translate(
@@ -155,6 +159,8 @@ class Translator:
             return local[node.id]
         if node.id == "pi":
             return Typed(sympy.pi, Dimension())
+        if node.id == INFINITY:
+            return Typed(sympy.oo, Dimension())
         binding = self.lookup(node.id)
         if binding is None:
             raise self._unknown(node)

@@ -7,11 +7,18 @@ from typing import TYPE_CHECKING
 import sympy
 
 from worksheet.engine import symbolic_ops as ops
-from worksheet.engine.bindings import Origin
-from worksheet.errors import DimensionError, EvaluationError, NameResolutionError, ParseError
+from worksheet.engine.bindings import Origin, unit_symbol
+from worksheet.errors import (
+    BudgetError,
+    DimensionError,
+    EvaluationError,
+    NameResolutionError,
+    ParseError,
+)
 from worksheet.syntax import tree as t
+from worksheet.syntax.units import parse_unit
 from worksheet.syntax.unparse import to_text
-from worksheet.units.dimension import Dimension
+from worksheet.units.dimension import BASE_UNITS, Dimension
 
 if TYPE_CHECKING:
     from worksheet.engine.translate import Translator, Typed
@@ -27,6 +34,57 @@ def _describe(node: t.Expr, typed: Typed) -> str:
     from worksheet.engine.translate import describe
 
     return describe(node, typed)
+
+
+def _infinite(expr: sympy.Expr) -> bool:
+    return expr is sympy.oo or expr is sympy.S.NegativeInfinity
+
+
+def _dimension_free(expr: sympy.Expr) -> bool:
+    """0 and +-inf fit a bound or a limit point of any dimension."""
+    return expr == 0 or _infinite(expr)
+
+
+def _si_unit_expr(tr: Translator, dim: Dimension) -> sympy.Expr:
+    """The coherent SI unit of ``dim`` as a product of base-unit symbols ([m], [kg], ...)."""
+    result = sympy.Integer(1)
+    for unit, power in zip(BASE_UNITS, dim.exponents, strict=True):
+        if power:
+            symbol = unit_symbol(unit)
+            tr.unit_values[symbol] = 1.0
+            result *= symbol ** sympy.Rational(power.numerator, power.denominator)
+    return result
+
+
+def _units_in_base_symbols(tr: Translator, *exprs: sympy.Expr) -> dict[sympy.Symbol, sympy.Expr]:
+    """Each bracketed unit as its exact factor times SI base-unit symbols, so that sympy sees
+    [m^2] = [m]^2 and can tell which root of ``x^2 - 2 [m]*x == 3 [m^2]`` is positive."""
+    replacements: dict[sympy.Symbol, sympy.Expr] = {}
+    for expr in exprs:
+        for symbol in expr.free_symbols:
+            if symbol in replacements or symbol not in tr.unit_values:
+                continue
+            resolved = tr.registry.resolve(parse_unit(symbol.name[1:-1]))
+            factor = sympy.Rational(repr(resolved.factor))
+            replacements[symbol] = factor * _si_unit_expr(tr, resolved.dimension)
+    return {k: v for k, v in replacements.items() if v != k}
+
+
+def _known_values(
+    tr: Translator, exprs: tuple[sympy.Expr, ...], variable: sympy.Symbol
+) -> dict[sympy.Symbol, float] | None:
+    """SI numbers of every symbol in ``exprs`` but ``variable``; None when one has none."""
+    values: dict[sympy.Symbol, float] = {}
+    for expr in exprs:
+        for symbol in expr.free_symbols - {variable}:
+            if symbol in tr.unit_values:
+                values[symbol] = tr.unit_values[symbol]
+                continue
+            binding = tr.lookup(symbol.name)
+            if binding is None or binding.symbol != symbol or binding.value is None:
+                return None
+            values[symbol] = binding.value
+    return values
 
 
 def _whole_number(node: t.Expr, what: str, most: int) -> int:
@@ -113,13 +171,13 @@ def translate_verb(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typ
         bounds: list[Typed] = [tr.translate(arg, local, expand=True) for arg in args[2:]]
         inferred = None
         for bound in bounds:
-            if bound.expr != 0:
+            if not _dimension_free(bound.expr):
                 inferred = bound.dim
         if bounds and inferred is None:
             inferred = Dimension()
         variable, var_dim, scope = _variable(tr, args[1], local, name, inferred)
         for bound_node, bound in zip(args[2:], bounds, strict=True):
-            if bound.expr != 0 and bound.dim != var_dim:
+            if not _dimension_free(bound.expr) and bound.dim != var_dim:
                 raise DimensionError(
                     f"integrate: the bound {_describe(bound_node, bound)} does not match the "
                     f"variable {args[1].id if isinstance(args[1], t.Name) else ''} "
@@ -129,7 +187,15 @@ def translate_verb(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typ
                 )
         body = tr.translate(args[0], scope, expand=True)
         call_args = (body.expr, variable, *(b.expr for b in bounds))
-        return _typed(tr.run(ops.integrate, call_args, name, node), body.dim * var_dim)
+        try:
+            result = tr.run(ops.integrate, call_args, name, node)
+        except BudgetError:
+            if _known_values(tr, tuple(call_args), variable) is None or not bounds:
+                raise
+            result = None  # no closed form within the budget: a number can still be had
+        if result is None or _needs_numbers(tr, result, call_args, variable, bounds):
+            result = _numeric_integral(tr, body, variable, var_dim, bounds, node)
+        return _typed(result, body.dim * var_dim)
     if name == "solve":
         tr._args(node, 2, 2)
         equation = args[0]
@@ -138,10 +204,12 @@ def translate_verb(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typ
         variable, var_dim, scope = _variable(tr, args[1], local, name)
         left = tr.translate(equation.left, scope, expand=True)
         right = tr.translate(equation.right, scope, expand=True)
-        _same_dimension(
-            "cannot solve, the two sides", equation.left, left, equation.right, right, equation
-        )
-        roots = tr.run(ops.solve, (left.expr, right.expr, variable), name, node)
+        _solve_sides_agree(equation, left, right, variable)
+        in_base = _units_in_base_symbols(tr, left.expr, right.expr)
+        lhs, rhs = left.expr.xreplace(in_base), right.expr.xreplace(in_base)
+        roots = tr.run(ops.solve, (lhs, rhs, variable), name, node)
+        if roots is None:
+            roots = _numeric_roots(tr, lhs - rhs, variable, var_dim, node)
         assert isinstance(roots, list)
         if not roots:
             raise EvaluationError(
@@ -161,7 +229,8 @@ def translate_verb(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typ
         variable, var_dim, scope = _variable(tr, args[1], local, name)
         body = tr.translate(args[0], scope, expand=True)
         point = tr.translate(args[2], local, expand=True)
-        if point.expr != 0 and point.dim != var_dim:
+        free_point = _dimension_free(point.expr) if name != "subs" else point.expr == 0
+        if not free_point and point.dim != var_dim:
             raise DimensionError(
                 f"{name}: {_describe(args[2], point)} does not match the variable "
                 f"{variable.name} ({var_dim.name()}, {var_dim.si_unit() or '1'})",
@@ -179,6 +248,98 @@ def translate_verb(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typ
     if name == "dsolve":
         return _dsolve(tr, node, local)
     raise ParseError(f"unknown verb {name}", node.line, node.column)
+
+
+def _needs_numbers(
+    tr: Translator,
+    result: sympy.Expr,
+    call_args: tuple[sympy.Expr, ...],
+    variable: sympy.Symbol,
+    bounds: list[Typed],
+) -> bool:
+    """A definite integral whose closed form cannot be computed (meijerg, ...) while the
+    integral itself can: quadrature gives the number."""
+    from worksheet.engine.numeric_fallback import computable
+
+    if not bounds or computable(result):
+        return False
+    return _known_values(tr, call_args, variable) is not None
+
+
+def _solve_sides_agree(
+    equation: t.Equation, left: Typed, right: Typed, variable: sympy.Symbol
+) -> None:
+    """Both sides of solve's equation in one dimension. The error points at the side with
+    the unknown in it (where the slip usually is) and names the other as the reference."""
+    if left.dim == right.dim or left.expr == 0 or right.expr == 0:
+        return
+    sides = [(equation.left, left), (equation.right, right)]
+    if variable in left.expr.free_symbols and variable not in right.expr.free_symbols:
+        sides.reverse()
+    (reference_node, reference), (wrong_node, wrong) = sides
+    raise DimensionError(
+        f"cannot solve: the side {_describe(wrong_node, wrong)} does not match the other "
+        f"side, {_describe(reference_node, reference)}",
+        wrong_node.line,
+        wrong_node.column,
+    )
+
+
+def _numeric_integral(
+    tr: Translator,
+    body: Typed,
+    variable: sympy.Symbol,
+    var_dim: Dimension,
+    bounds: list[Typed],
+    node: t.Call,
+) -> sympy.Expr:
+    """Quadrature where sympy finds no closed form and every other name has a value."""
+    from worksheet.engine.numeric_fallback import quadrature
+
+    values = _known_values(tr, (body.expr, *(b.expr for b in bounds)), variable) if bounds else None
+    if values is None:
+        raise EvaluationError(
+            f"no closed form found for the integral of {to_text(node.args[0])}; with numeric "
+            "bounds and values for every other name it is integrated numerically",
+            node.line,
+            node.column,
+        )
+    try:
+        number = quadrature(body.expr, variable, bounds[0].expr, bounds[1].expr, values)
+    except EvaluationError as err:
+        raise EvaluationError(err.message, node.line, node.column) from err
+    tr.numeric_notes.append(
+        "integrated numerically (mpmath quadrature): no closed form that can be computed"
+    )
+    return sympy.Float(number, 17) * _si_unit_expr(tr, body.dim * var_dim)
+
+
+def _numeric_roots(
+    tr: Translator, difference: sympy.Expr, variable: sympy.Symbol, var_dim: Dimension, node: t.Call
+) -> list[sympy.Expr]:
+    """Bracketed numeric roots where sympy has no method and every other name has a value."""
+    from worksheet.engine.numeric_fallback import SCAN_DECADES, bracketed_roots
+
+    values = _known_values(tr, (difference,), variable)
+    if values is None:
+        raise EvaluationError(
+            f"solve: no closed form for {variable.name}; with values for every other name it "
+            "is solved numerically",
+            node.line,
+            node.column,
+        )
+    roots = bracketed_roots(difference, variable, values)
+    if not roots:
+        low, high = SCAN_DECADES
+        raise EvaluationError(
+            f"solve: no closed form, and no real root for {variable.name} between "
+            f"1e{low} and 1e{high} (SI)",
+            node.line,
+            node.column,
+        )
+    tr.numeric_notes.append("solved numerically (bracketed root): no closed form")
+    unit = _si_unit_expr(tr, var_dim)
+    return [sympy.Float(root, 17) * unit for root in roots]
 
 
 def _dsolve(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typed:
