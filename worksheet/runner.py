@@ -147,6 +147,11 @@ class SheetRun:
         return tuple(marked)
 
 
+MAX_RENUMBERING_RUNS = 3
+"""A run whose result blocks move later cells is repeated with the new line numbers; the
+second run keeps every block's size (one record per statement), so it is final."""
+
+
 class SheetRunner:
     """Runs documents, keeping one evaluator per settings so re-runs are incremental."""
 
@@ -166,16 +171,19 @@ class SheetRunner:
 
     def run(self, doc: SheetDocument) -> SheetRun:
         settings = read_settings(doc)
+        evaluator = self.evaluator(settings)
         statements = document_statements(doc)
-        results = self.evaluator(settings).run(statements)
-        per_cell: list[list[str]] = [[] for _ in doc.calc_cells()]
-        lines_of: list[list[str]] = []
-        for source, result in zip(statements, results, strict=True):
-            lines = result.record.split("\n") if result.record else []
-            lines_of.append(lines)
-            per_cell[source.cell].extend(lines)
+        for _ in range(MAX_RENUMBERING_RUNS):
+            results = evaluator.run(statements)
+            per_cell, lines_of = _recorded_lines(doc, statements, results)
+            new_doc = with_results(doc, per_cell)
+            as_written = document_statements(new_doc)
+            if [s.line for s in as_written] == [s.line for s in statements]:
+                break
+            # Result blocks were inserted or resized, so later cells moved: run again with
+            # the line numbers of the file as it is written, which messages cite.
+            statements = as_written
         stale = _staleness(doc, statements, results, lines_of)
-        new_doc = with_results(doc, per_cell)
         return SheetRun(
             settings,
             tuple(statements),
@@ -188,6 +196,21 @@ class SheetRunner:
     def close(self) -> None:
         for context in self._contexts.values():
             context.worker.close()
+
+
+def _recorded_lines(
+    doc: SheetDocument,
+    statements: Sequence[SourceStatement],
+    results: Sequence[StatementResult],
+) -> tuple[list[list[str]], list[list[str]]]:
+    """The result-block lines of each cell, and the lines of each statement."""
+    per_cell: list[list[str]] = [[] for _ in doc.calc_cells()]
+    lines_of: list[list[str]] = []
+    for source, result in zip(statements, results, strict=True):
+        lines = result.record.split("\n") if result.record else []
+        lines_of.append(lines)
+        per_cell[source.cell].extend(lines)
+    return per_cell, lines_of
 
 
 def _staleness(
