@@ -121,3 +121,22 @@ def test_issue10_redefined_constant_near_the_bottom_leaves_earlier_uses(run_shee
     message = results[2].message
     assert message.startswith("line 3, col 1: 'G' is a constant")
     assert "G_2" in message and "G : [m^3/(kg*s^2)]" in message
+
+
+def test_issue10_divergent_and_oscillating_integrals_are_recorded_errors(run_sheet) -> None:
+    results = run_sheet(
+        DECLARED + "p = integrate(1/y, y, 1, inf)\nq = integrate(sin(y), y, 0, inf)\nr = inf^inf\n"
+    )
+    assert "diverges" in results[-3].message
+    assert "does not converge" in results[-2].message
+    assert all(r.status == "error" and r.message.startswith("line ") for r in results[-3:])
+
+
+def test_issue10_uncomputable_closed_form_root_gets_a_number(results_by_name) -> None:
+    # y e^y = 1 is solved by sympy as LambertW(1), the omega constant 0.5671432904097838
+    # (scipy.special.lambertw).
+    import scipy.special
+
+    named = results_by_name(DECLARED + "w = solve(y*exp(y) == 1, y)\n")
+    assert named["w"].si_value == pytest.approx(scipy.special.lambertw(1).real, rel=1e-12)
+    assert "solved numerically" in named["w"].record

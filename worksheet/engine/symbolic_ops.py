@@ -37,6 +37,10 @@ def integrate(
         result = sympy.integrate(expr, (variable, lower, upper))
     if result.has(sympy.Integral):
         return None
+    if result.has(sympy.AccumBounds):
+        raise EvaluationError("the integral does not converge (its value oscillates)")
+    if result.has(sympy.oo, -sympy.oo, sympy.zoo):
+        raise EvaluationError("the integral diverges")
     if isinstance(result, sympy.Piecewise):
         # With positive symbols the convergent branch is the first; say so if it is not clear.
         first, condition = result.args[0]

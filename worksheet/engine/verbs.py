@@ -208,7 +208,7 @@ def translate_verb(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typ
         in_base = _units_in_base_symbols(tr, left.expr, right.expr)
         lhs, rhs = left.expr.xreplace(in_base), right.expr.xreplace(in_base)
         roots = tr.run(ops.solve, (lhs, rhs, variable), name, node)
-        if roots is None:
+        if roots is None or _roots_need_numbers(tr, roots, lhs - rhs, variable):
             roots = _numeric_roots(tr, lhs - rhs, variable, var_dim, node)
         assert isinstance(roots, list)
         if not roots:
@@ -314,6 +314,17 @@ def _numeric_integral(
     return sympy.Float(number, 17) * _si_unit_expr(tr, body.dim * var_dim)
 
 
+def _roots_need_numbers(
+    tr: Translator, roots: list, difference: sympy.Expr, variable: sympy.Symbol
+) -> bool:
+    """Closed-form roots that cannot be computed (LambertW, ...) where a number can."""
+    from worksheet.engine.numeric_fallback import computable
+
+    if all(computable(root) for root in roots):
+        return False
+    return _known_values(tr, (difference,), variable) is not None
+
+
 def _numeric_roots(
     tr: Translator, difference: sympy.Expr, variable: sympy.Symbol, var_dim: Dimension, node: t.Call
 ) -> list[sympy.Expr]:
@@ -337,7 +348,9 @@ def _numeric_roots(
             node.line,
             node.column,
         )
-    tr.numeric_notes.append("solved numerically (bracketed root): no closed form")
+    tr.numeric_notes.append(
+        "solved numerically (bracketed root): no closed form that can be computed"
+    )
     unit = _si_unit_expr(tr, var_dim)
     return [sympy.Float(root, 17) * unit for root in roots]
 
