@@ -140,3 +140,12 @@ def test_issue10_uncomputable_closed_form_root_gets_a_number(results_by_name) ->
     named = results_by_name(DECLARED + "w = solve(y*exp(y) == 1, y)\n")
     assert named["w"].si_value == pytest.approx(scipy.special.lambertw(1).real, rel=1e-12)
     assert "solved numerically" in named["w"].record
+
+
+def test_issue10_integral_from_inf_down(results_by_name) -> None:
+    # The integral of e^-y from inf to 0 is -1; of a constant from inf to 0 it diverges.
+    named = results_by_name(
+        DECLARED + "a = integrate(exp(-y), y, inf, 0)\nb = integrate(cos(2), y, inf, 0)\n"
+    )
+    assert named["a"].si_value == -1.0
+    assert named["b"].status == "error" and "diverges" in named["b"].message

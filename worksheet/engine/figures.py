@@ -222,7 +222,7 @@ def _rescued_by_guard(
     mp = _MP.mp
     if not mp.isfinite(precise) or precise == 0 or abs(mp.mag(precise)) > MAX_RECORDED_BITS:
         return None
-    reason = f"cancellation; double precision gave no number ({err.message})"
+    reason = f"cancellation; double precision failed: {err.message}"
     return Figures(math.nan, precise, {}, None, reason)
 
 

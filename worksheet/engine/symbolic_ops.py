@@ -33,6 +33,11 @@ def integrate(
     quadrature)."""
     if lower is None:
         result = sympy.integrate(expr, variable)
+    elif lower is sympy.oo or upper is sympy.S.NegativeInfinity:
+        # Integrate the other way and change the sign: sympy's definite integrals from +oo
+        # down can fail inside (meijerint_definite returns None).
+        flipped = integrate(expr, variable, upper, lower)
+        return None if flipped is None else -flipped
     else:
         result = sympy.integrate(expr, (variable, lower, upper))
     if result.has(sympy.Integral):
