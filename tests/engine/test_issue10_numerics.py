@@ -149,3 +149,14 @@ def test_issue10_integral_from_inf_down(results_by_name) -> None:
     )
     assert named["a"].si_value == -1.0
     assert named["b"].status == "error" and "diverges" in named["b"].message
+
+
+def test_issue10_numeric_fallback_says_when_it_drops_an_uncertainty(results_by_name) -> None:
+    named = results_by_name(
+        DECLARED + "W = 2 [m] +- 5%\nz = solve(x*exp(x/W) + x == 2 [m], x)\n"
+        "a = integrate(exp(-(x/W)^2), x, 0, 1 [m])\nw = solve(y*exp(y) + y == 2, y)\n"
+    )
+    for name in "za":
+        assert "uncertainties are not propagated" in named[name].record
+        assert named[name].uncertainty is None
+    assert "not propagated" not in named["w"].record

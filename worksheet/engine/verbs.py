@@ -87,6 +87,40 @@ def _known_values(
     return values
 
 
+def _has_uncertain_inputs(
+    tr: Translator, exprs: tuple[sympy.Expr, ...], variable: sympy.Symbol
+) -> bool:
+    """Whether a numeric fallback drops an uncertainty (a given's +-, a constant's, or G's
+    share in a unit such as [M_sun]); the record then says so."""
+    for expr in exprs:
+        for symbol in expr.free_symbols - {variable}:
+            if symbol in tr.unit_values:
+                names = [name for name, _ in parse_unit(symbol.name[1:-1]).factors]
+                g = tr.lookup("G")
+                if (
+                    g is not None
+                    and g.uncertainty
+                    and any(
+                        n.startswith("M_") and tr.lookup(f"GM_{n[2:]}") is not None for n in names
+                    )
+                ):
+                    return True
+                continue
+            binding = tr.lookup(symbol.name)
+            if binding is not None and (binding.gradient or binding.uncertainty):
+                return True
+    return False
+
+
+def _fallback_note(
+    tr: Translator, what: str, exprs: tuple[sympy.Expr, ...], variable: sympy.Symbol
+) -> None:
+    note = f"{what}: no closed form that can be computed"
+    if _has_uncertain_inputs(tr, exprs, variable):
+        note += "; its inputs' uncertainties are not propagated through it"
+    tr.numeric_notes.append(note)
+
+
 def _whole_number(node: t.Expr, what: str, most: int) -> int:
     if not isinstance(node, t.Number) or node.value.denominator != 1 or not 0 < node.value <= most:
         raise ParseError(f"{what} must be a whole number from 1 to {most}", node.line, node.column)
@@ -209,7 +243,7 @@ def translate_verb(tr: Translator, node: t.Call, local: dict[str, Typed]) -> Typ
         lhs, rhs = left.expr.xreplace(in_base), right.expr.xreplace(in_base)
         roots = tr.run(ops.solve, (lhs, rhs, variable), name, node)
         if roots is None or _roots_need_numbers(tr, roots, lhs - rhs, variable):
-            roots = _numeric_roots(tr, lhs - rhs, variable, var_dim, node)
+            roots = _numeric_roots(tr, lhs - rhs, variable, var_dim, node, left.expr - right.expr)
         assert isinstance(roots, list)
         if not roots:
             raise EvaluationError(
@@ -308,8 +342,11 @@ def _numeric_integral(
         number = quadrature(body.expr, variable, bounds[0].expr, bounds[1].expr, values)
     except EvaluationError as err:
         raise EvaluationError(err.message, node.line, node.column) from err
-    tr.numeric_notes.append(
-        "integrated numerically (mpmath quadrature): no closed form that can be computed"
+    _fallback_note(
+        tr,
+        "integrated numerically (mpmath quadrature)",
+        (body.expr, *(b.expr for b in bounds)),
+        variable,
     )
     return sympy.Float(number, 17) * _si_unit_expr(tr, body.dim * var_dim)
 
@@ -326,7 +363,12 @@ def _roots_need_numbers(
 
 
 def _numeric_roots(
-    tr: Translator, difference: sympy.Expr, variable: sympy.Symbol, var_dim: Dimension, node: t.Call
+    tr: Translator,
+    difference: sympy.Expr,
+    variable: sympy.Symbol,
+    var_dim: Dimension,
+    node: t.Call,
+    as_written: sympy.Expr,
 ) -> list[sympy.Expr]:
     """Bracketed numeric roots where sympy has no method and every other name has a value."""
     from worksheet.engine.numeric_fallback import SCAN_DECADES, bracketed_roots
@@ -348,9 +390,7 @@ def _numeric_roots(
             node.line,
             node.column,
         )
-    tr.numeric_notes.append(
-        "solved numerically (bracketed root): no closed form that can be computed"
-    )
+    _fallback_note(tr, "solved numerically (bracketed root)", (as_written,), variable)
     unit = _si_unit_expr(tr, var_dim)
     return [sympy.Float(root, 17) * unit for root in roots]
 
