@@ -160,3 +160,15 @@ def test_issue10_numeric_fallback_says_when_it_drops_an_uncertainty(results_by_n
         assert "uncertainties are not propagated" in named[name].record
         assert named[name].uncertainty is None
     assert "not propagated" not in named["w"].record
+
+
+def test_issue10_refused_constant_edited_into_a_declaration(ctx) -> None:
+    # The incremental path must notice that the line now owns the name G.
+    from worksheet.engine import SheetEvaluator, split_statements
+
+    evaluator = SheetEvaluator(ctx)
+    first = evaluator.run(split_statements("M = 1e12 [kg]\nG = 5\nq = G*M\n", 1))
+    assert [r.status for r in first] == ["ok", "error", "ok"]
+    second = evaluator.run(split_statements("M = 1e12 [kg]\nG : [m^3/(kg*s^2)]\nq = G*M\n", 1))
+    assert second[2].status == "ok" and second[2].si_value is None
+    assert second[2].record == "q = G*M"

@@ -228,6 +228,9 @@ class SheetEvaluator:
             parsed, defines, uses = self._parse(statements[index])
             if defines != slots[index].defines:
                 return None
+            fresh = _Slot(statements[index], parsed, defines, uses)
+            if self._claims_name(fresh) != self._claims_name(slots[index]):
+                return None  # G = 5 became G : [...]: the name's owner changes
         for index in changed:
             parsed, defines, uses = self._parse(statements[index])
             slots[index] = _Slot(statements[index], parsed, defines, uses)
