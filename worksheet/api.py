@@ -430,8 +430,15 @@ class Sheet:
         if target is None:
             raise DocumentError("this sheet was not loaded from a file; give save() a path")
         result = self._last if self._last is not None else self.run()
-        atomic_write_text(target, result.text)
-        self._document = result.sheet_run.document
+        written = result.sheet_run
+        if not written.cites_written_lines:  # result blocks move cells: cite the new lines
+            try:
+                written = self._runner.run(self._document, lines_as_written=True)
+            finally:
+                if not self._open:
+                    self._runner.close()
+        atomic_write_text(target, written.text)
+        self._document = written.document
         self._path = target
         self._last = None  # the recorded results changed, so staleness must be recomputed
         return target

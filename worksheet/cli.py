@@ -120,13 +120,13 @@ def _read(path_text: str):
         raise UsageError(f"{path_text}: cannot read ({err.strerror})") from err
 
 
-def _run_document(path_text: str):
+def _run_document(path_text: str, lines_as_written: bool = False):
     from worksheet.runner import SheetRunner
 
     doc = _read(path_text)
     runner = SheetRunner()
     try:
-        return runner.run(doc)
+        return runner.run(doc, lines_as_written)
     except WorksheetError as err:
         raise UsageError(f"{path_text}: {err.located()}; nothing was written") from err
     finally:
@@ -148,7 +148,7 @@ def _summary_lines(path_text: str, results) -> list[str]:
 def _run(args: argparse.Namespace) -> int:
     from worksheet.document import atomic_write_text
 
-    run = _run_document(args.file)
+    run = _run_document(args.file, lines_as_written=True)
     target = args.output or args.file
     try:
         atomic_write_text(target, run.text)

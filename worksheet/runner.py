@@ -123,6 +123,11 @@ class SheetRun:
     stale: tuple[StaleLine, ...] = field(default=())
 
     @property
+    def cites_written_lines(self) -> bool:
+        """Whether the line numbers in the results are those of ``text`` (the file written)."""
+        return _same_lines(document_statements(self.document), self.statements)
+
+    @property
     def all_hold(self) -> bool:
         """No claim failed and no statement erred or was skipped."""
         return all(r.status in ("ok",) for r in self.results if r.kind != "blank")
@@ -169,7 +174,10 @@ class SheetRunner:
             self._evaluators[key] = SheetEvaluator(context)
         return self._evaluators[key]
 
-    def run(self, doc: SheetDocument) -> SheetRun:
+    def run(self, doc: SheetDocument, lines_as_written: bool = False) -> SheetRun:
+        """Run ``doc``. Messages cite the lines of ``doc`` itself (what ``check``, exports
+        and the app show), or with ``lines_as_written`` those of the file this run writes
+        (what ``worksheet run`` and saving use)."""
         settings = read_settings(doc)
         evaluator = self.evaluator(settings)
         statements = document_statements(doc)
@@ -178,7 +186,7 @@ class SheetRunner:
             per_cell, lines_of = _recorded_lines(doc, statements, results)
             new_doc = with_results(doc, per_cell)
             as_written = document_statements(new_doc)
-            if [s.line for s in as_written] == [s.line for s in statements]:
+            if not lines_as_written or _same_lines(as_written, statements):
                 break
             # Result blocks were inserted or resized, so later cells moved: run again with
             # the line numbers of the file as it is written, which messages cite.
@@ -196,6 +204,10 @@ class SheetRunner:
     def close(self) -> None:
         for context in self._contexts.values():
             context.worker.close()
+
+
+def _same_lines(a: Sequence[SourceStatement], b: Sequence[SourceStatement]) -> bool:
+    return [s.line for s in a] == [s.line for s in b]
 
 
 def _recorded_lines(

@@ -36,3 +36,17 @@ def test_issue10_log_of_a_subnormal_is_no_overflow(results_by_name) -> None:
     assert named["z"].precision is None
     assert math.isclose(named["w"].si_value, math.log(3) + 400 * math.log(10), rel_tol=1e-15)
     assert "precision loss" not in named["w"].record
+
+
+def test_issue10_guard_does_not_rescue_a_complex_value(run_sheet) -> None:
+    # The cube root of a negative sum is not a real number in double or at 50 digits: the
+    # guard must leave the error standing (it once recorded an mpmath complex and crashed).
+    results = run_sheet("y = (1 - 2)^(1/3)\nz = 1/(1 - cos(1e-9)) + (1 - 2)^(1/3)\n")
+    assert [r.status for r in results] == ["error", "error"]
+    assert all("not a real number" in r.message for r in results)
+
+
+def test_issue10_rescued_value_says_its_uncertainty_is_dropped(results_by_name) -> None:
+    named = results_by_name("a = 1e-9 +- 1%\nx = 1/(1 - cos(a))\n")
+    assert named["x"].status == "ok"
+    assert "uncertainties are not propagated" in named["x"].record

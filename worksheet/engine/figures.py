@@ -220,9 +220,13 @@ def _rescued_by_guard(
     except (EvaluationError, ValueError, ZeroDivisionError, TypeError):
         return None
     mp = _MP.mp
+    if not isinstance(precise, mp.mpf):  # a complex value: double precision was right
+        return None
     if not mp.isfinite(precise) or precise == 0 or abs(mp.mag(precise)) > MAX_RECORDED_BITS:
         return None
     reason = f"cancellation; double precision failed: {err.message}"
+    if _has_uncertain_inputs(expr, sheet, ctx):
+        reason += "; uncertainties are not propagated through this value"
     return Figures(math.nan, precise, {}, None, reason)
 
 
