@@ -84,9 +84,9 @@ def test_every_claim_and_used_constant_is_present(path, runs):
         # The claims table shows the statement as written (a trailing comment included).
         assert "\\texttt{" + escape_code(claim.text, keep_spaces=False) in exports["latex"]
         assert f"<code>{html.escape(claim.text)}" in exports["html"]
-        assert (
-            f"claim, line {claim.line}: {'holds' if claim.holds else 'fails'}" in exports["latex"]
-        )
+        word = "holds" if claim.holds else "fails"
+        assert f"\\item[{{\\footnotesize {claim.line}}}] " in exports["latex"]
+        assert f"claim: \\textbf{{{word}}}" in exports["latex"]
         assert f"| {claim.line} |" in exports["md"]
     held = sum(1 for c in claims if c.status == "ok")
     for to in FORMATS:
@@ -147,7 +147,8 @@ def test_plots_and_tables_compile(tmp_path, plot_run):
     assert done.returncode == 0, done.stdout[-3000:]
     host = (
         "\\documentclass{article}\n\\usepackage[T1]{fontenc}\n"
-        "\\usepackage{amsmath,amssymb,siunitx,pgfplots}\n\\pgfplotsset{compat=1.16}\n"
+        "\\usepackage{amsmath,amssymb,siunitx,array,longtable,pgfplots}\n"
+        "\\pgfplotsset{compat=1.16}\n"
         "\\begin{document}\n\\input{part}\n\\end{document}\n"
     )
     fragment = export_run(plot_run, "latex", "plots.sheet.md", standalone=False)[0]

@@ -601,6 +601,7 @@ class StatementEvaluator:
             dimension=target.dimension.name(),
             symbolic_text=monomial,
             message=note,
+            uncertainty=shown_u,
             record=record,
         ), binding
 

@@ -35,7 +35,7 @@ from worksheet.export.sweep_table import (
     SweepTable,
     is_number,
     plot_table,
-    read_table_record,
+    result_table,
     split_number,
 )
 from worksheet.syntax import parse_expression
@@ -146,7 +146,7 @@ def _step_row(step: Step, digits: int) -> str:
         body += " — " + escape(result.message)
     elif result.kind == "plot" and result.plot is not None:
         body += plot_figure_html(step, digits)
-    elif result.kind == "table" and (table := read_table_record(result.record)) is not None:
+    elif (table := result_table(result, digits)) is not None:
         body += sweep_table_html(table)
     elif result.record:
         body += '<pre class="record">' + escape(result.record) + "</pre>"
