@@ -27,6 +27,7 @@ from worksheet.export.report import (
     Report,
     Step,
     ValueText,
+    outcome_sentence,
     value_text,
     written_with_verb,
 )
@@ -114,6 +115,8 @@ def _provenance(report: Report) -> str:
         + "."
     )
     lines.append(f"Numbers recorded to {report.digits} significant figures.")
+    outcome = escape(outcome_sentence(report))
+    lines.append(f"<strong>{outcome}</strong>" if report.has_problems else outcome)
     return '<p class="provenance">' + "<br>\n".join(lines) + "</p>\n"
 
 

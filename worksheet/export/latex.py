@@ -207,7 +207,8 @@ def _symbolic(step: Step, expr: t.Expr, always: bool = False) -> str:
     try:
         return " = " + expr_latex(parse_expression(symbolic))
     except WorksheetError:
-        return " = " + texttt(symbolic)
+        # Not in the sheet's syntax: as text, out of math so that it may break.
+        return " = \\) " + texttt(symbolic, keep_spaces=False) + " \\(\\displaystyle "
 
 
 def _check_math(step: Step, tree: t.Check) -> str:

@@ -10,7 +10,7 @@ from __future__ import annotations
 import re
 
 from worksheet import CAUTION
-from worksheet.export.report import CellItem, NoteItem, Report, Step
+from worksheet.export.report import CellItem, NoteItem, Report, Step, outcome_sentence
 from worksheet.export.sweep_table import SweepTable, result_table
 
 _SPECIAL = re.compile(r"([\\`*_{}\[\]<>#|!~&])")
@@ -73,6 +73,8 @@ def _provenance(report: Report) -> str:
         + "."
     )
     lines.append(f"Numbers recorded to {report.digits} significant figures.")
+    outcome = escape_markdown(outcome_sentence(report))
+    lines.append(f"**{outcome}**" if report.has_problems else outcome)
     return "  \n".join(lines) + "\n"
 
 

@@ -125,7 +125,9 @@ def outcome_sentence(report: Report) -> str:
     if not report.has_problems:
         if not claims:
             return "The sheet makes no claim; every line was evaluated."
-        return f"All {_count(len(claims), 'claim')} hold; every line was evaluated."
+        if len(claims) == 1:
+            return "The sheet's one claim holds; every line was evaluated."
+        return f"All {len(claims)} claims hold; every line was evaluated."
     parts = []
     if failed:
         parts.append(
