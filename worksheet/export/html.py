@@ -77,6 +77,9 @@ table.sweep { border-top: 1px solid #333333; border-bottom: 1px solid #333333; }
 table.sweep th { border-bottom: 1px solid #333333; text-align: right; }
 table.sweep td { text-align: right; font-variant-numeric: tabular-nums; }
 .note { color: #444444; font-size: 0.85rem; }
+.math { white-space: nowrap; }
+.math .upright var, .math .upright { font-style: normal; }
+.math.display { display: block; text-align: center; margin: 0.5rem 0; }
 """
 
 
