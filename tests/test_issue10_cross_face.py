@@ -185,7 +185,7 @@ def latex_unit(text: str) -> str:
         if match["macro"] in ("per", "squared", "cubed"):
             raise AssertionError(text)
         name = match["literal"] or (_PREFIX.get(match["prefix"] or "", "") + _UNIT[match["macro"]])
-        power = {"\\squared": 2, "\\cubed": 3}.get(match["power"] or "", None)
+        power = {"\\squared": 2, "\\cubed": 3}.get(match["power"] or "")
         if power is None:
             power = int(match[6]) if match[6] else 1
         factors.append(f"{name}^{-power if match[1] else power}")
