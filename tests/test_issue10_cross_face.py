@@ -258,7 +258,8 @@ def html_rows(page: str) -> dict[int, str]:
 def html_value(right: str) -> Shown:
     if right.startswith("record:"):
         return read_record(right[len("record:") :])
-    tail = right.rsplit(" = ", 1)[1]
+    tail = right.split(' <span class="factors">', 1)[0].rsplit(" = ", 1)[-1]
+    tail = tail.removeprefix("= ")
     match = _HTML_VALUE.match(tail)
     assert match is not None, tail
     value = match["value"].replace("−", "-")

@@ -7,12 +7,18 @@ several share a page), tables real ``<table>``s.
 
 from __future__ import annotations
 
+from fractions import Fraction
 from html import escape
 
 from worksheet import CAUTION
+from worksheet.engine.formatting import format_number
+from worksheet.engine.sweeps import ScalingExponent
 from worksheet.errors import WorksheetError
 from worksheet.export.html_math import (
+    MINUS,
     expr_html,
+    frac_html,
+    number_html,
     name_html,
     operator_html,
     tolerance_html,
@@ -77,6 +83,7 @@ table.sweep { border-top: 1px solid #333333; border-bottom: 1px solid #333333; }
 table.sweep th { border-bottom: 1px solid #333333; text-align: right; }
 table.sweep td { text-align: right; font-variant-numeric: tabular-nums; }
 .note { color: #444444; font-size: 0.85rem; }
+table.constants td.number { white-space: nowrap; }
 .math { white-space: nowrap; }
 .math .upright var, .math .upright { font-style: normal; }
 .math.display { display: block; text-align: center; margin: 0.5rem 0; }
@@ -97,7 +104,7 @@ def html_document(report: Report) -> str:
     ]
     for item in report.items:
         if isinstance(item, NoteItem):
-            parts.append('<div class="note">\n' + note_parser().render(item.text) + "</div>\n")
+            parts.append('<div class="prose">\n' + note_parser().render(item.text) + "</div>\n")
         elif isinstance(item, CellItem):
             parts.append(cell_html(item.steps, report.digits))
     parts.append(_claims_table(report))
@@ -166,6 +173,13 @@ def _step_row(step: Step, digits: int) -> str:
 def result_note(step: Step) -> str:
     """What the engine noted about a shown value (precision loss, poor uncertainty), escaped."""
     result = step.result
+    if result.kind == "scaling" and result.detail:
+        local = [e.name for e in result.detail if not isinstance(e.exponent, Fraction)]
+        if local:
+            return escape(
+                "local logarithmic slopes at the fiducial point: not a power law in "
+                + ", ".join(local)
+            )
     return escape(result.message) if result.status == "ok" and result.message else ""
 
 
@@ -228,6 +242,15 @@ def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:
         return name_html(tree.name) + "(" + params + ")", "= " + expr_html(tree.expr), ""
     if isinstance(tree, t.Declaration):
         return ("[" + name_html(tree.name) + "]", "= " + unit_html(tree.unit), "declared")
+    if isinstance(tree, t.Scaling) and result.status == "ok" and result.detail and value:
+        return name_html(tree.target), "= " + value_html(value) + _scaling_factors(tree, step), ""
+    if isinstance(tree, t.Estimate) and result.status == "ok" and result.symbolic:
+        try:
+            product = expr_html(parse_expression(result.symbolic))
+        except WorksheetError:
+            product = "<code>" + escape(result.symbolic) + "</code>"
+        inputs = ", ".join(name_html(name) for name in tree.inputs)
+        return name_html(tree.name), "∼ " + product + shown_value, "estimate from " + inputs
     if isinstance(tree, t.Check):
         right = operator_html(tree.op) + " " + expr_html(tree.right)
         if tree.absolute_tolerance is not None:
@@ -239,6 +262,31 @@ def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:
             status += ": " + escape(result.message)
         return expr_html(tree.left), right, status
     return None
+
+
+def _scaling_factors(tree: t.Scaling, step: Step) -> str:
+    """``(M / M0)^p`` for each factor of a scaling form, exact exponents as recorded."""
+    fiducial = dict(tree.around)
+    parts = []
+    for item in step.result.detail:
+        assert isinstance(item, ScalingExponent)
+        power = item.exponent
+        if isinstance(power, Fraction):
+            shown = "" if power == 1 else "<sup>" + escape(_fraction_text(power)) + "</sup>"
+        else:
+            shown = "<sup>" + escape(format_number(power, 3).replace("-", MINUS)) + "</sup>"
+        ratio = frac_html(name_html(item.name), expr_html(fiducial[item.name]))
+        parts.append("(" + ratio + ")" + shown)
+    return ' <span class="factors">' + " ".join(parts) + "</span>"
+
+
+def _fraction_text(power: Fraction) -> str:
+    text = (
+        str(abs(power.numerator))
+        if power.denominator == 1
+        else f"{abs(power.numerator)}/{power.denominator}"
+    )
+    return ("−" if power < 0 else "") + text
 
 
 def _uncertainty_html(uncertainty: t.Uncertainty) -> str:
@@ -283,6 +331,14 @@ def _claims_table(report: Report) -> str:
     )
 
 
+def _constant_number(text: str) -> str:
+    """A dataset number in full, its power of ten typeset, the text as published kept in
+    ``<data value>`` for a reader that copies it (``exact`` and words as they are)."""
+    if not is_number(text):
+        return escape(text)
+    return f'<data value="{escape(text)}">{number_html(text)}</data>'
+
+
 def _constants_table(report: Report) -> str:
     head = (
         "<h2>Constants used</h2>\n<p>Dataset: "
@@ -295,8 +351,10 @@ def _constants_table(report: Report) -> str:
     for row in report.constants:
         symbol = (unit_text_html(row.symbol) + " (unit)") if row.as_unit else name_html(row.symbol)
         rows.append(
-            f"<tr><td>{symbol}</td><td>{escape(row.name)}</td><td>{escape(row.value)}</td>"
-            f"<td>{escape(row.uncertainty)}</td><td>{unit_text_html(row.unit)}</td>"
+            f"<tr><td>{symbol}</td><td>{escape(row.name)}</td>"
+            f'<td class="number">{_constant_number(row.value)}</td>'
+            f'<td class="number">{_constant_number(row.uncertainty)}</td>'
+            f"<td>{unit_text_html(row.unit)}</td>"
             f"<td>{escape(row.source)}</td></tr>\n"
         )
     return (

@@ -78,7 +78,7 @@ def latex_document(report: Report, standalone: bool = True) -> str:
         + "\\begin{document}\n\n"
         + "{\\centering\\LARGE "
         + escape_text(report.title)
-        + "\\par}\n\n"
+        + "\\par}\n\\bigskip\n\n"
         + "\\noindent\\textbf{Caution.} "
         + escape_text(CAUTION)
         + "\n\n"

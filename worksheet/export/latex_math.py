@@ -178,7 +178,7 @@ def _call_latex(node: t.Call, inline: bool) -> str:
         return "\\lim_{" + args[1] + "\\to " + args[2] + "}" + _paren(args[0])
     if func == "subs" and count == 3:
         return "\\left." + args[0] + "\\right|_{" + args[1] + " = " + args[2] + "}"
-    if func in ("solve", "simplify", "expand", "factor", "series", "dsolve"):
+    if func in ("solve", "simplify", "expand", "factor", "series", "dsolve", "natural"):
         return "\\operatorname{" + func + "}" + _paren(",\\;".join(args))
     return name_latex(func) + _paren(",\\,".join(args))
 
