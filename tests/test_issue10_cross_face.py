@@ -359,3 +359,39 @@ def test_issue10_a_face_that_misstates_a_number_is_caught():
         Shown("1.227e11", "2800000", "K^1")
     )
     assert read_record("t = 2.665e12 yr * (M / 1e12 kg)^3") == Shown("2.665e12", None, "yr")
+
+
+GUARDED = """\
+```calc
+x = exp(1000)
+y = 1e-320*1e-10
+w = 1 - cos(1e-9)
+```
+"""
+"""Beyond the double range (overflow, underflow) and a cancellation: the precision guard's
+high-precision value is the recorded one, and every document must show it, not inf or 0."""
+
+
+def test_issue10_precision_guarded_values_are_shown_as_recorded():
+    import mpmath
+
+    run = run_text(GUARDED)
+    units = Units(run.settings.dataset)
+    # Independent values at 50 digits (mpmath): e^1000, 1e-330, 1 - cos(1e-9) = 5e-19.
+    mpmath.mp.dps = 50
+    exact = {
+        2: f"{Decimal(mpmath.nstr(mpmath.e**1000, 20)):.3e}".replace("e+", "e"),
+        3: "1.000e-330",
+        4: "5.000e-19",
+    }
+    mpmath.mp.dps = 15
+    block = result_block_lines(run)
+    latex = latex_items(export_run(run, "latex")[0])
+    page = html_rows(export_run(run, "html")[0])
+    report = markdown_lines(export_run(run, "md")[0])
+    for line, value in exact.items():
+        expected = Shown(value, None, "")
+        assert_same("result block", line, read_record(block[line]), expected, units)
+        assert_same("LaTeX", line, latex_value(latex[line]), expected, units)
+        assert_same("HTML", line, html_value(page[line]), expected, units)
+        assert_same("Markdown", line, read_record(report[line]), expected, units)

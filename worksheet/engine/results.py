@@ -35,7 +35,8 @@ class StatementResult:
     """The sympy expression behind ``symbolic``, printed only when someone asks."""
     detail: Any = field(default=None, compare=False, repr=False)
     """Structured data behind a record the exports typeset (a table's columns, a scaling
-    form's exponents), so no face reads the record text back; not part of ``--json``."""
+    form's exponents, the high-precision value as recorded where the precision guard found
+    a loss), so no face reads the record text back; not part of ``--json``."""
 
     @cached_property
     def symbolic(self) -> str | None:

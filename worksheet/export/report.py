@@ -176,8 +176,14 @@ def value_text(result: StatementResult, digits: int) -> ValueText | None:
     """
     if result.value is None or result.status != "ok":
         return None
-    number = format_number(result.value, digits)
-    finite = math.isfinite(result.value)
+    if result.precision is not None and isinstance(result.detail, str):
+        # The guard's high-precision value, as recorded: beyond the double range the
+        # double value is inf or 0, which the record (rightly) does not show.
+        number = result.detail
+        finite = True
+    else:
+        number = format_number(result.value, digits)
+        finite = math.isfinite(result.value)
     mantissa, _, exponent_text = number.partition("e")
     exponent = int(exponent_text) if exponent_text else None
     uncertainty = None
