@@ -250,9 +250,13 @@ check M_solved < 5e11 [kg]
 x = 1 [m]
 scaling r_long in [km] around M_long = 1.23456789012345e30 [kg]
 1 [M_earth] in [kg]
+S_long = 4*pi*G*M_long^2/(hbar*c)
+E_long = M_long*c^2
+table M_long = 1e9 [kg] .. 1e15 [kg] log 90: r_long, t_long, S_long, E_long, M_long in [M_sun]
 ```
 """
-"""The sheet's digits at 15, a long solve and a dataset unit with a 17-digit value."""
+"""The sheet's digits at 15, a long solve, a dataset unit with a 17-digit value, and a
+sweep too wide for the line and too long for a page."""
 
 
 @pytest.mark.slow

@@ -56,7 +56,7 @@ def test_issue10_not_finite_cells_are_counted_from_the_data():
 
 def test_latex_table_is_a_tabular_with_numbers(plot_run):
     text, _ = export_run(plot_run, "latex")
-    assert "\\begin{tabular}{rrr}" in text
+    assert "\\begin{longtable}{rrr}" in text
     assert "\\(M\\) [\\(\\unit{\\kilo\\gram}\\)] & \\(T_{\\mathrm{H}}\\)" in text
     mantissa, exponent = f"{_hawking(1e9):.3e}".split("e")
     assert f"\\num{{1.000e9}} & \\num{{{mantissa}e{int(exponent)}}}" in text

@@ -42,7 +42,13 @@ from worksheet.export.report import (
     value_text,
     written_with_verb,
 )
-from worksheet.export.sweep_table import SweepTable, is_number, result_table
+from worksheet.export.sweep_table import (
+    Column,
+    SweepTable,
+    is_number,
+    result_table,
+    split_number,
+)
 from worksheet.syntax import parse_expression
 from worksheet.syntax import tree as t
 from worksheet.syntax.unparse import to_text
@@ -312,21 +318,60 @@ def _cell_latex(cell: str) -> str:
     return breakable_num(cell) if is_number(cell) else texttt(cell)
 
 
+TABLE_WIDTH_EM = 34.0
+"""What a sweep's columns may take, in em of the table's small type (the line is ~39 em)."""
+
+
+def _cell_width_em(cell: str) -> float:
+    """A rough width of a cell as typeset (digits 0.5 em; an exponent adds x 10^n)."""
+    mantissa, exponent = split_number(cell)
+    width = 0.5 * len(mantissa)
+    return width + (2.2 + 0.35 * len(str(exponent)) if exponent is not None else 0.0)
+
+
+def _header_width_em(column: Column) -> float:
+    return 0.55 * len(column.name) + (0.5 * len(column.unit) + 1.2 if column.unit else 0.0)
+
+
+def column_groups(table: SweepTable) -> list[list[int]]:
+    """Columns in groups that fit the line, each group after the swept column (which every
+    group repeats), so a wide table becomes several tables instead of running off the page."""
+    widths = [
+        max([_header_width_em(column)] + [_cell_width_em(row[i]) for row in table.rows]) + 0.8
+        for i, column in enumerate(table.columns)
+    ]
+    groups: list[list[int]] = []
+    current: list[int] = []
+    used = widths[0]
+    for index in range(1, len(table.columns)):
+        if current and used + widths[index] > TABLE_WIDTH_EM:
+            groups.append(current)
+            current, used = [], widths[0]
+        current.append(index)
+        used += widths[index]
+    groups.append(current)
+    return [[0, *group] for group in groups]
+
+
 def sweep_table_latex(table: SweepTable) -> str:
-    """A sweep as a real ``tabular``: names and units typeset, numbers right-aligned."""
-    head = " & ".join(title_latex(c.name, c.unit) for c in table.columns) + " \\\\"
-    rows = [" & ".join(_cell_latex(cell) for cell in row) + " \\\\" for row in table.rows]
+    """A sweep as real tables: names and units typeset, numbers right-aligned; a
+    ``longtable`` (so a long sweep continues on the next page, its header repeated),
+    split into column groups when it is wider than the line."""
+    parts = []
+    for group in column_groups(table):
+        head = " & ".join(title_latex(table.columns[i].name, table.columns[i].unit) for i in group)
+        rows = [" & ".join(_cell_latex(row[i]) for i in group) + " \\\\" for row in table.rows]
+        parts.append(
+            "{\\small\\setlength{\\tabcolsep}{0.4em}\\begin{longtable}{"
+            + "r" * len(group)
+            + "}\n\\hline\n"
+            + head
+            + " \\\\\n\\hline\n\\endhead\n\\hline\n\\endfoot\n"
+            + "\n".join(rows)
+            + "\n\\end{longtable}}\n"
+        )
     notes = "".join("\\par " + escape_text(note) + "\n" for note in table.notes)
-    return (
-        "\\par\\smallskip{\\centering\\begin{tabular}{"
-        + "r" * len(table.columns)
-        + "}\n\\hline\n"
-        + head
-        + "\n\\hline\n"
-        + "\n".join(rows)
-        + "\n\\hline\n\\end{tabular}\\par}\n"
-        + notes
-    )
+    return "".join(parts) + notes
 
 
 def _claims_table(report: Report) -> str:
