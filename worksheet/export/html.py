@@ -84,6 +84,7 @@ table.sweep th { border-bottom: 1px solid #333333; text-align: right; }
 table.sweep td { text-align: right; font-variant-numeric: tabular-nums; }
 .note { color: #444444; font-size: 0.85rem; }
 table.constants td.number { white-space: nowrap; }
+div.wide { max-width: min(56rem, 90vw); overflow-x: auto; }
 .math { white-space: nowrap; }
 .math .upright var, .math .upright { font-style: normal; }
 .math.display { display: block; text-align: center; margin: 0.5rem 0; }
@@ -216,7 +217,8 @@ def sweep_table_html(table: SweepTable) -> str:
         for row in table.rows
     )
     notes = "".join(f'<p class="note">{escape(note)}</p>\n' for note in table.notes)
-    return f'<table class="sweep">\n<tr>{head}</tr>\n{rows}</table>\n{notes}'
+    table_html = f'<table class="sweep">\n<tr>{head}</tr>\n{rows}</table>\n'
+    return f'<div class="wide">\n{table_html}</div>\n{notes}'
 
 
 def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:

@@ -408,7 +408,7 @@ def _constants_table(report: Report) -> str:
         "Dataset: " + escape_text(report.dataset_name + " -- " + report.dataset_title) + ".\n\n"
     )
     if not report.constants:
-        return head + "The sheet uses no constant of the dataset.\n\n"
+        return head + "\\noindent The sheet uses no constant of the dataset.\n\n"
     rows = []
     for row in report.constants:
         if row.as_unit:
