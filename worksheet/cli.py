@@ -268,7 +268,7 @@ def _open(args: argparse.Namespace) -> int:
 
 def _export(args: argparse.Namespace) -> int:
     from worksheet.document import atomic_write_text
-    from worksheet.export import PLOT_FORMATS, export_run, plot_files
+    from worksheet.export import PLOT_FORMATS, export_run, plot_files, run_problems
 
     run = _run_document(args.file)
     stem = str(Path(args.file).with_suffix(""))
@@ -282,7 +282,7 @@ def _export(args: argparse.Namespace) -> int:
             raise UsageError(f"{args.file}: {err.located()}") from err
         if not files:
             print(f"{args.file}: no plot to draw; nothing was written")
-            return 0
+            return _export_outcome(args.file, run_problems(run))
         for item in files:
             target = folder / item.name
             try:
@@ -290,7 +290,7 @@ def _export(args: argparse.Namespace) -> int:
             except OSError as err:
                 raise UsageError(f"{target}: cannot write ({err.strerror})") from err
             print(f"wrote {target}")
-        return 0
+        return _export_outcome(args.file, run_problems(run))
     try:
         text, suffix = export_run(run, args.to, source_name=Path(args.file).name)
     except WorksheetError as err:
@@ -298,4 +298,12 @@ def _export(args: argparse.Namespace) -> int:
     target = args.output or stem + suffix
     atomic_write_text(target, text)
     print(f"wrote {target}")
-    return 0
+    return _export_outcome(args.file, run_problems(run))
+
+
+def _export_outcome(file: str, problems: str | None) -> int:
+    """Exit 1, with the export's own summary on stderr, when a claim fails or a line errs."""
+    if problems is None:
+        return 0
+    print(f"{file}: {problems} The export says so.", file=sys.stderr)
+    return 1

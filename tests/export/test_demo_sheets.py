@@ -84,9 +84,9 @@ def test_every_claim_and_used_constant_is_present(path, runs):
         # The claims table shows the statement as written (a trailing comment included).
         assert "\\texttt{" + escape_code(claim.text, keep_spaces=False) in exports["latex"]
         assert f"<code>{html.escape(claim.text)}" in exports["html"]
-        assert (
-            f"claim, line {claim.line}: {'holds' if claim.holds else 'fails'}" in exports["latex"]
-        )
+        word = "holds" if claim.holds else "fails"
+        assert f"\\item[{{\\footnotesize {claim.line}}}] " in exports["latex"]
+        assert f"claim: \\textbf{{{word}}}" in exports["latex"]
         assert f"| {claim.line} |" in exports["md"]
     held = sum(1 for c in claims if c.status == "ok")
     for to in FORMATS:
@@ -147,7 +147,8 @@ def test_plots_and_tables_compile(tmp_path, plot_run):
     assert done.returncode == 0, done.stdout[-3000:]
     host = (
         "\\documentclass{article}\n\\usepackage[T1]{fontenc}\n"
-        "\\usepackage{amsmath,amssymb,siunitx,pgfplots}\n\\pgfplotsset{compat=1.16}\n"
+        "\\usepackage{amsmath,amssymb,siunitx,array,longtable,pgfplots}\n"
+        "\\pgfplotsset{compat=1.16}\n"
         "\\begin{document}\n\\input{part}\n\\end{document}\n"
     )
     fragment = export_run(plot_run, "latex", "plots.sheet.md", standalone=False)[0]
@@ -204,3 +205,72 @@ def test_demo_html_renders(tmp_path, path, runs):
 def test_plots_render_in_the_browser(tmp_path, plot_run):
     dom = _dump_dom(tmp_path, export_run(plot_run, "html", "plots.sheet.md")[0])
     assert dom.count("<svg") == 2 and dom.count("<polyline") == 3
+
+
+_OVERFULL_H = re.compile(r"^Overfull \\hbox \(([0-9.]+)pt too wide\)", re.MULTILINE)
+_OVERFULL_V = re.compile(r"^Overfull \\vbox \(([0-9.]+)pt too high\)", re.MULTILINE)
+
+
+def overfull_boxes(log: str) -> list[str]:
+    """Every overfull box in a pdflatex log that a reader would see: hboxes over 1 pt, and
+    any vbox (the lines around each are kept, to say where it is)."""
+    found = []
+    for match in _OVERFULL_H.finditer(log):
+        if float(match.group(1)) > 1.0:
+            found.append(log[match.start() : match.start() + 300])
+    found += [log[m.start() : m.start() + 300] for m in _OVERFULL_V.finditer(log)]
+    return found
+
+
+def test_overfull_boxes_are_read_from_a_log():
+    log = (
+        "Overfull \\hbox (193.6pt too wide) detected at line 40\n"
+        "Overfull \\hbox (0.4pt too wide) in paragraph at lines 3--4\n"
+        "Overfull \\vbox (2.0pt too high) has occurred while \\output is active\n"
+    )
+    assert len(overfull_boxes(log)) == 2
+
+
+LONG_NUMBERS = """\
+---
+title: Long numbers and long lines
+constants: CODATA2022
+digits: 15
+---
+
+A note with $T_\\mathrm{H} \\propto M^{-1}$ and $$E = m c^2$$ in it.
+
+```calc
+M_long = 1.23456789012345e30 [kg] +- 1.1e20 [kg]
+r_long = 2*G*M_long/c^2 in [km]
+t_long = 5120*pi*G^2*M_long^3/(hbar*c^4) in [yr]
+M_x : [kg]
+M_solved = solve(5120*pi*G^2*M_x^3/(hbar*c^4) == 13.79e9 [yr], M_x) in [kg]
+check M_solved < 5e11 [kg]
+x = 1 [m]
+scaling r_long in [km] around M_long = 1.23456789012345e30 [kg]
+1 [M_earth] in [kg]
+S_long = 4*pi*G*M_long^2/(hbar*c)
+E_long = M_long*c^2
+table M_long = 1e9 [kg] .. 1e15 [kg] log 90: r_long, t_long, S_long, E_long, M_long in [M_sun]
+```
+"""
+"""The sheet's digits at 15, a long solve, a dataset unit with a 17-digit value, and a
+sweep too wide for the line and too long for a page."""
+
+
+@pytest.mark.slow
+@pytest.mark.skipif(_tex() is None, reason="no pdflatex on PATH (install TeX Live)")
+@pytest.mark.parametrize("path", [*SHEETS, None], ids=lambda p: p.name if p else "long-numbers")
+def test_issue10_no_overfull_box_in_any_demo_export(tmp_path, path, runs):
+    # Target of issue 10: no overfull box over 1 pt on every demo sheet, from pdflatex's log.
+    if path is None:
+        source = export_run(run_text(LONG_NUMBERS), "latex", "long.sheet.md")[0]
+    else:
+        source = export_run(runs[path.name], "latex", path.name)[0]
+    if "pgfplots" in source and not _has_pgfplots():
+        pytest.skip("the sheet plots and pgfplots is missing (apt-get install texlive-pictures)")
+    done = _compile(tmp_path, "demo", source)
+    assert done.returncode == 0, done.stdout[-3000:]
+    log = (tmp_path / "demo.log").read_text(encoding="latin-1")
+    assert overfull_boxes(log) == []

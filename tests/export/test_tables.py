@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import pytest
@@ -9,16 +10,20 @@ import scipy.constants as sc
 from markdown_it import MarkdownIt
 
 from worksheet.export import export_run
-from worksheet.export.sweep_table import read_table_record
+from worksheet.export.sweep_table import result_table
+from worksheet.runner import run_text
 
 
 def _hawking(mass: float) -> float:
     return sc.hbar * sc.c**3 / (8 * sc.pi * sc.G * mass * sc.k)
 
 
-def test_record_is_read_back_into_columns_and_cells(plot_run):
-    record = next(r.record for r in plot_run.results if r.kind == "table")
-    table = read_table_record(record)
+def test_issue10_table_comes_from_the_result_not_its_record(plot_run):
+    result = next(r for r in plot_run.results if r.kind == "table")
+    # A record that no longer matches the data would be read back wrongly; the table is
+    # built from the columns the engine computed, so the garbled record changes nothing.
+    garbled = dataclasses.replace(result, record="table ...:\n  M [kg]  junk\n  x y z")
+    table = result_table(garbled, 4)
     assert table is not None
     assert [(c.name, c.unit) for c in table.columns] == [
         ("M", "kg"),
@@ -28,17 +33,30 @@ def test_record_is_read_back_into_columns_and_cells(plot_run):
     assert len(table.rows) == 4
     for row, mass in zip(table.rows, (1e9, 1e11, 1e13, 1e15), strict=True):
         assert float(row[0]) == mass
+        # Hawking temperature hbar c^3 / (8 pi G M k_B), scipy.constants (CODATA 2018).
         assert math.isclose(float(row[1]), _hawking(mass), rel_tol=5e-4)
+    # Same cells as the result block records, row by row.
+    recorded = [line.split() for line in result.record.split("\n")[2:]]
+    assert [list(row) for row in table.rows] == recorded
 
 
-def test_a_record_that_is_not_a_table_is_refused():
-    assert read_table_record(None) is None
-    assert read_table_record("x = 1 m") is None
+def test_a_result_that_is_not_a_table_has_none(plot_run):
+    assert all(result_table(r, 4) is None for r in plot_run.results if r.kind != "table")
+
+
+def test_issue10_not_finite_cells_are_counted_from_the_data():
+    run = run_text("```calc\nx = 1\ny = 1/x\ntable x = -1, 0, 1: y\n```\n")
+    result = next(r for r in run.results if r.kind == "table")
+    table = result_table(result, 4)
+    assert table is not None and len(table.rows) == 3
+    assert table.notes == tuple(
+        line.strip() for line in result.record.split("\n") if line.strip().startswith("(")
+    )
 
 
 def test_latex_table_is_a_tabular_with_numbers(plot_run):
     text, _ = export_run(plot_run, "latex")
-    assert "\\begin{tabular}{rrr}" in text
+    assert "\\begin{longtable}{rrr}" in text
     assert "\\(M\\) [\\(\\unit{\\kilo\\gram}\\)] & \\(T_{\\mathrm{H}}\\)" in text
     mantissa, exponent = f"{_hawking(1e9):.3e}".split("e")
     assert f"\\num{{1.000e9}} & \\num{{{mantissa}e{int(exponent)}}}" in text

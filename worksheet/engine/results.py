@@ -33,6 +33,10 @@ class StatementResult:
     plot: Any = None  # PlotData for 'plot' statements
     form: Any = field(default=None, compare=False, repr=False)
     """The sympy expression behind ``symbolic``, printed only when someone asks."""
+    detail: Any = field(default=None, compare=False, repr=False)
+    """Structured data behind a record the exports typeset (a table's columns, a scaling
+    form's exponents, the high-precision value as recorded where the precision guard found
+    a loss), so no face reads the record text back; not part of ``--json``."""
 
     @cached_property
     def symbolic(self) -> str | None:
@@ -46,7 +50,7 @@ class StatementResult:
     def to_json(self) -> dict[str, Any]:
         data: dict[str, Any] = {}
         for item in fields(self):
-            if item.name in ("record", "form"):
+            if item.name in ("record", "form", "detail"):
                 continue
             if item.name == "symbolic_text":
                 data["symbolic"] = self.symbolic

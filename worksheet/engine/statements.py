@@ -432,6 +432,7 @@ class StatementEvaluator:
             record=record,
             precision=figures.loss,
             message="; ".join(notes) or None,
+            detail=_precise_number(figures, offset, factor, self.ctx.digits),
         )
 
     def _uncertainty(self, stmt: t.Definition, quantity: Quantity, tr: Translator) -> float | None:
@@ -642,6 +643,7 @@ class StatementEvaluator:
             dimension=target.dimension.name(),
             symbolic_text=monomial,
             message=note,
+            uncertainty=shown_u,
             record=record,
         ), binding
 
@@ -823,3 +825,11 @@ def _lone_unit_value(node: t.Expr) -> tuple[Fraction, t.Unit] | None:
     ):
         return node.left.value * sign, node.right
     return None
+
+
+def _precise_number(figures: Figures, offset: float, factor: float, digits: int) -> str | None:
+    """The high-precision value in the recorded notation where the guard found a loss
+    (beyond the double range the exports cannot show it from ``value``)."""
+    if figures.loss is None or figures.precise is None:
+        return None
+    return format_precise((figures.precise - offset) / factor, digits)

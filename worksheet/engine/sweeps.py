@@ -35,6 +35,24 @@ if TYPE_CHECKING:
 
 
 @dataclass(frozen=True)
+class ScalingExponent:
+    """One factor of a scaling form: exact where d ln X / d ln M is constant, else the
+    local slope at the fiducial point (a float, recorded to three figures)."""
+
+    name: str
+    exponent: Fraction | float
+
+
+@dataclass(frozen=True)
+class TableColumn:
+    """One column of a ``table`` in the unit its header names ("" for a pure number)."""
+
+    name: str
+    unit: str
+    values: tuple[float, ...]
+
+
+@dataclass(frozen=True)
 class _Input:
     binding: Binding
     value: float  # SI
@@ -137,6 +155,7 @@ def evaluate_scaling(ev: StatementEvaluator, stmt: t.Scaling) -> StatementResult
         )
     parts: list[str] = []
     local = []
+    exponents: list[ScalingExponent] = []
     for item in inputs:
         slope = ev.translator().run(ops.log_slope, (form, item.binding.symbol), "scaling", stmt)
         assert isinstance(slope, sympy.Expr)
@@ -145,6 +164,7 @@ def evaluate_scaling(ev: StatementEvaluator, stmt: t.Scaling) -> StatementResult
             if power == 0:
                 continue
             text = _exponent_text(power)
+            exponents.append(ScalingExponent(item.binding.name, power))
         else:
             try:
                 number = float(evaluate(slope.xreplace(point), values))
@@ -155,6 +175,7 @@ def evaluate_scaling(ev: StatementEvaluator, stmt: t.Scaling) -> StatementResult
                 ) from err
             local.append(item.binding.name)
             text = f"^{format_number(number, 3)}"
+            exponents.append(ScalingExponent(item.binding.name, number))
         parts.append(f"({item.binding.name} / {item.shown}){text}")
     value_text = format_number(at_point / factor, ev.ctx.digits) + (f" {unit}" if unit else "")
     record = f"{stmt.target} = {value_text}" + "".join(f" * {part}" for part in parts)
@@ -175,6 +196,7 @@ def evaluate_scaling(ev: StatementEvaluator, stmt: t.Scaling) -> StatementResult
         si_unit=compose_base_units(target.dimension.exponents),
         dimension=target.dimension.name(),
         record=record,
+        detail=tuple(exponents),
     )
 
 
@@ -250,4 +272,14 @@ def evaluate_table(ev: StatementEvaluator, stmt: t.Table) -> StatementResult:
         "ok",
         name=None,
         record="\n".join(lines),
+        detail=tuple(
+            TableColumn(*_header_parts(header), tuple(float(v) for v in column))
+            for header, column in zip(headers, columns, strict=True)
+        ),
     )
+
+
+def _header_parts(header: str) -> tuple[str, str]:
+    """``T_H [K]`` as its name and unit (headers are built that way in table_columns)."""
+    name, _, rest = header.partition(" [")
+    return name, rest[:-1] if rest else ""

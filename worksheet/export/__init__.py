@@ -19,7 +19,7 @@ from worksheet.export.html import html_document
 from worksheet.export.latex import latex_document
 from worksheet.export.markdown import markdown_document
 from worksheet.export.plot_files import PLOT_FORMATS, PlotFile, plot_files
-from worksheet.export.report import Report, build_report
+from worksheet.export.report import Report, build_report, outcome_sentence
 from worksheet.runner import SheetRun
 
 FORMATS: dict[str, str] = {"latex": ".tex", "html": ".html", "md": ".report.md"}
@@ -52,6 +52,15 @@ def export_run(
     return text, FORMATS[to]
 
 
+def run_problems(run: SheetRun) -> str | None:
+    """The sentence every export shows when a claim does not hold or a line errs, else None.
+
+    The command line prints it on stderr and exits 1, after writing the document.
+    """
+    report = build_report(run)
+    return outcome_sentence(report) if report.has_problems else None
+
+
 __all__ = [
     "CAUTION",
     "FORMATS",
@@ -61,4 +70,5 @@ __all__ = [
     "build_report",
     "export_run",
     "plot_files",
+    "run_problems",
 ]

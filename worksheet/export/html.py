@@ -7,13 +7,19 @@ several share a page), tables real ``<table>``s.
 
 from __future__ import annotations
 
+from fractions import Fraction
 from html import escape
 
 from worksheet import CAUTION
+from worksheet.engine.formatting import format_number
+from worksheet.engine.sweeps import ScalingExponent
 from worksheet.errors import WorksheetError
 from worksheet.export.html_math import (
+    MINUS,
     expr_html,
+    frac_html,
     name_html,
+    number_html,
     operator_html,
     tolerance_html,
     unit_html,
@@ -27,6 +33,7 @@ from worksheet.export.report import (
     Report,
     Step,
     ValueText,
+    outcome_sentence,
     value_text,
     written_with_verb,
 )
@@ -35,7 +42,7 @@ from worksheet.export.sweep_table import (
     SweepTable,
     is_number,
     plot_table,
-    read_table_record,
+    result_table,
     split_number,
 )
 from worksheet.syntax import parse_expression
@@ -76,6 +83,11 @@ table.sweep { border-top: 1px solid #333333; border-bottom: 1px solid #333333; }
 table.sweep th { border-bottom: 1px solid #333333; text-align: right; }
 table.sweep td { text-align: right; font-variant-numeric: tabular-nums; }
 .note { color: #444444; font-size: 0.85rem; }
+table.constants td.number { white-space: nowrap; }
+div.wide { max-width: min(56rem, 90vw); overflow-x: auto; }
+.math { white-space: nowrap; }
+.math .upright var, .math .upright { font-style: normal; }
+.math.display { display: block; text-align: center; margin: 0.5rem 0; }
 """
 
 
@@ -93,7 +105,7 @@ def html_document(report: Report) -> str:
     ]
     for item in report.items:
         if isinstance(item, NoteItem):
-            parts.append('<div class="note">\n' + note_parser().render(item.text) + "</div>\n")
+            parts.append('<div class="prose">\n' + note_parser().render(item.text) + "</div>\n")
         elif isinstance(item, CellItem):
             parts.append(cell_html(item.steps, report.digits))
     parts.append(_claims_table(report))
@@ -114,6 +126,8 @@ def _provenance(report: Report) -> str:
         + "."
     )
     lines.append(f"Numbers recorded to {report.digits} significant figures.")
+    outcome = escape(outcome_sentence(report))
+    lines.append(f"<strong>{outcome}</strong>" if report.has_problems else outcome)
     return '<p class="provenance">' + "<br>\n".join(lines) + "</p>\n"
 
 
@@ -146,7 +160,7 @@ def _step_row(step: Step, digits: int) -> str:
         body += " — " + escape(result.message)
     elif result.kind == "plot" and result.plot is not None:
         body += plot_figure_html(step, digits)
-    elif result.kind == "table" and (table := read_table_record(result.record)) is not None:
+    elif (table := result_table(result, digits)) is not None:
         body += sweep_table_html(table)
     elif result.record:
         body += '<pre class="record">' + escape(result.record) + "</pre>"
@@ -160,6 +174,13 @@ def _step_row(step: Step, digits: int) -> str:
 def result_note(step: Step) -> str:
     """What the engine noted about a shown value (precision loss, poor uncertainty), escaped."""
     result = step.result
+    if result.kind == "scaling" and result.detail:
+        local = [e.name for e in result.detail if not isinstance(e.exponent, Fraction)]
+        if local:
+            return escape(
+                "local logarithmic slopes at the fiducial point: not a power law in "
+                + ", ".join(local)
+            )
     return escape(result.message) if result.status == "ok" and result.message else ""
 
 
@@ -196,7 +217,8 @@ def sweep_table_html(table: SweepTable) -> str:
         for row in table.rows
     )
     notes = "".join(f'<p class="note">{escape(note)}</p>\n' for note in table.notes)
-    return f'<table class="sweep">\n<tr>{head}</tr>\n{rows}</table>\n{notes}'
+    table_html = f'<table class="sweep">\n<tr>{head}</tr>\n{rows}</table>\n'
+    return f'<div class="wide">\n{table_html}</div>\n{notes}'
 
 
 def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:
@@ -222,6 +244,15 @@ def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:
         return name_html(tree.name) + "(" + params + ")", "= " + expr_html(tree.expr), ""
     if isinstance(tree, t.Declaration):
         return ("[" + name_html(tree.name) + "]", "= " + unit_html(tree.unit), "declared")
+    if isinstance(tree, t.Scaling) and result.status == "ok" and result.detail and value:
+        return name_html(tree.target), "= " + value_html(value) + _scaling_factors(tree, step), ""
+    if isinstance(tree, t.Estimate) and result.status == "ok" and result.symbolic:
+        try:
+            product = expr_html(parse_expression(result.symbolic))
+        except WorksheetError:
+            product = "<code>" + escape(result.symbolic) + "</code>"
+        inputs = ", ".join(name_html(name) for name in tree.inputs)
+        return name_html(tree.name), "∼ " + product + shown_value, "estimate from " + inputs
     if isinstance(tree, t.Check):
         right = operator_html(tree.op) + " " + expr_html(tree.right)
         if tree.absolute_tolerance is not None:
@@ -233,6 +264,31 @@ def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:
             status += ": " + escape(result.message)
         return expr_html(tree.left), right, status
     return None
+
+
+def _scaling_factors(tree: t.Scaling, step: Step) -> str:
+    """``(M / M0)^p`` for each factor of a scaling form, exact exponents as recorded."""
+    fiducial = dict(tree.around)
+    parts = []
+    for item in step.result.detail:
+        assert isinstance(item, ScalingExponent)
+        power = item.exponent
+        if isinstance(power, Fraction):
+            shown = "" if power == 1 else "<sup>" + escape(_fraction_text(power)) + "</sup>"
+        else:
+            shown = "<sup>" + escape(format_number(power, 3).replace("-", MINUS)) + "</sup>"
+        ratio = frac_html(name_html(item.name), expr_html(fiducial[item.name]))
+        parts.append("(" + ratio + ")" + shown)
+    return ' <span class="factors">' + " ".join(parts) + "</span>"
+
+
+def _fraction_text(power: Fraction) -> str:
+    text = (
+        str(abs(power.numerator))
+        if power.denominator == 1
+        else f"{abs(power.numerator)}/{power.denominator}"
+    )
+    return ("−" if power < 0 else "") + text
 
 
 def _uncertainty_html(uncertainty: t.Uncertainty) -> str:
@@ -277,6 +333,14 @@ def _claims_table(report: Report) -> str:
     )
 
 
+def _constant_number(text: str) -> str:
+    """A dataset number in full, its power of ten typeset, the text as published kept in
+    ``<data value>`` for a reader that copies it (``exact`` and words as they are)."""
+    if not is_number(text):
+        return escape(text)
+    return f'<data value="{escape(text)}">{number_html(text)}</data>'
+
+
 def _constants_table(report: Report) -> str:
     head = (
         "<h2>Constants used</h2>\n<p>Dataset: "
@@ -289,8 +353,10 @@ def _constants_table(report: Report) -> str:
     for row in report.constants:
         symbol = (unit_text_html(row.symbol) + " (unit)") if row.as_unit else name_html(row.symbol)
         rows.append(
-            f"<tr><td>{symbol}</td><td>{escape(row.name)}</td><td>{escape(row.value)}</td>"
-            f"<td>{escape(row.uncertainty)}</td><td>{unit_text_html(row.unit)}</td>"
+            f"<tr><td>{symbol}</td><td>{escape(row.name)}</td>"
+            f'<td class="number">{_constant_number(row.value)}</td>'
+            f'<td class="number">{_constant_number(row.uncertainty)}</td>'
+            f"<td>{unit_text_html(row.unit)}</td>"
             f"<td>{escape(row.source)}</td></tr>\n"
         )
     return (

@@ -178,7 +178,7 @@ def _call_latex(node: t.Call, inline: bool) -> str:
         return "\\lim_{" + args[1] + "\\to " + args[2] + "}" + _paren(args[0])
     if func == "subs" and count == 3:
         return "\\left." + args[0] + "\\right|_{" + args[1] + " = " + args[2] + "}"
-    if func in ("solve", "simplify", "expand", "factor", "series", "dsolve"):
+    if func in ("solve", "simplify", "expand", "factor", "series", "dsolve", "natural"):
         return "\\operatorname{" + func + "}" + _paren(",\\;".join(args))
     return name_latex(func) + _paren(",\\,".join(args))
 
@@ -197,21 +197,41 @@ def _decimal(value: Fraction) -> str:
     return f"{float(value):.12g}"
 
 
+BREAKABLE_DIGITS = 8
+"""Numbers with more significant digits than this may break between digit groups."""
+
+
+def breakable_num(literal: str) -> str:
+    """``\\num`` of a number; a long one may break between its digit groups, so it wraps
+    in a narrow column instead of running off the page (it is never shortened).
+
+    >>> breakable_num("6.67430e-11"), breakable_num("1.0545718176461564e-34")[:37]
+    ('\\\\num{6.67430e-11}', '\\\\num[group-separator={\\\\,\\\\allowbreak}]')
+    """
+    digits = sum(char.isdigit() for char in literal.split("e")[0].split("E")[0])
+    if digits > BREAKABLE_DIGITS:
+        return "\\num[group-separator={\\,\\allowbreak}]{" + literal + "}"
+    return "\\num{" + literal + "}"
+
+
 def value_latex(value: ValueText) -> str:
-    """A recorded value as one siunitx quantity, uncertainty and unit included."""
+    """A recorded value in math mode: its digits exactly as recorded, uncertainty, unit.
+
+    The value and the uncertainty are separate ``\\num``s, so siunitx does not pad the value
+    to the uncertainty's decimals (``10.57 \\pm 0.00024``, not ``10.57000``).
+    """
     if not value.finite:
         return "\\text{" + value.plain + "}"
-    number = value.mantissa
-    if value.uncertainty is not None:
-        number += " \\pm " + value.uncertainty
-    if value.exponent is not None:
-        number += " e" + str(value.exponent)
     unit = unit_text_latex(value.unit)
-    if unit.startswith("\\unit{") and unit.endswith("}"):
-        return "\\qty{" + number + "}{" + unit[len("\\unit{") : -1] + "}"
-    if unit:
-        return "\\num{" + number + "}\\," + unit
-    return "\\num{" + number + "}"
+    if value.uncertainty is None:
+        number = value.mantissa + ("" if value.exponent is None else " e" + str(value.exponent))
+        if unit.startswith("\\unit{") and unit.endswith("}"):
+            return "\\qty{" + number + "}{" + unit[len("\\unit{") : -1] + "}"
+        return breakable_num(number) + ("\\," + unit if unit else "")
+    number = breakable_num(value.mantissa) + " \\pm " + breakable_num(value.uncertainty)
+    if value.exponent is not None:
+        number = "(" + number + ") \\times 10^{" + str(value.exponent) + "}"
+    return number + ("\\," + unit if unit else "")
 
 
 def operator_latex(op: str) -> str:

@@ -7,6 +7,7 @@ from collections.abc import Sequence
 from markdown_it.token import Token
 
 from worksheet.export.latex_text import escape_text, texttt
+from worksheet.export.note_math import safe_tex_math
 from worksheet.export.notes import note_parser
 
 _HEADINGS = (
@@ -49,6 +50,8 @@ def note_latex(text: str) -> str:
             out.append("\\end{" + _ENVIRONMENTS[kind[:-6]] + "}\n\n")
         elif kind == "list_item_open":
             out.append("\\item ")
+        elif kind in ("math_block", "math_block_label"):
+            out.append(math_latex(token.content, display=True) + "\n\n")
         elif kind in ("fence", "code_block"):
             out.append(code_lines_latex(token.content.split("\n")))
         elif kind == "hr":
@@ -130,4 +133,21 @@ def inline_latex(children: Sequence[Token]) -> str:
                 out.append(" (" + texttt(href, keep_spaces=False) + ")")
         elif kind == "html_inline":
             out.append(escape_text(token.content))
+        elif kind in ("math_inline", "math_inline_double"):
+            out.append(math_latex(token.content, display=kind == "math_inline_double"))
     return "".join(out)
+
+
+def math_latex(source: str, display: bool = False) -> str:
+    """A note's ``$...$`` as math when it passes the check in ``note_math``; else its text.
+
+    >>> print(math_latex(r"T_H \\propto M^{-1}"), math_latex(r"\\input{x}"))
+    \\(T_H \\propto M^{-1}\\) \\$\\textbackslash{}input\\{x\\}\\$
+    """
+    safe = safe_tex_math(source.strip())
+    if safe is None:
+        dollars = "\\$\\$" if display else "\\$"
+        return dollars + escape_text(source) + dollars
+    if display:
+        return "\\[" + safe + "\\]"
+    return "\\(" + safe + "\\)"

@@ -78,7 +78,8 @@ def escape_text(text: str) -> str:
 def escape_code(text: str, keep_spaces: bool = True) -> str:
     """Text for ``\\texttt``: as escape_text, no ligatures (``--``), spaces kept if asked.
 
-    Kept spaces are unbreakable (``~``), so use them only for short lines.
+    Kept spaces are unbreakable (``~``), so use them only for short lines; without them the
+    text may also break after ``*`` and ``/``.
     """
     out: list[str] = []
     for char in escape_text(text):
@@ -86,6 +87,8 @@ def escape_code(text: str, keep_spaces: bool = True) -> str:
             out.append("~")
         elif char == "-":
             out.append("-{}")
+        elif char in "*/" and not keep_spaces:
+            out.append(char + "\\allowbreak{}")  # long formulas wrap after an operator
         else:
             out.append(char)
     return "".join(out)

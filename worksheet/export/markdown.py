@@ -10,8 +10,8 @@ from __future__ import annotations
 import re
 
 from worksheet import CAUTION
-from worksheet.export.report import CellItem, NoteItem, Report, Step
-from worksheet.export.sweep_table import SweepTable, read_table_record
+from worksheet.export.report import CellItem, NoteItem, Report, Step, outcome_sentence
+from worksheet.export.sweep_table import SweepTable, result_table
 
 _SPECIAL = re.compile(r"([\\`*_{}\[\]<>#|!~&])")
 _BACKTICKS = re.compile(r"`+")
@@ -56,7 +56,7 @@ def markdown_document(report: Report) -> str:
         if isinstance(item, NoteItem):
             parts.append(item.text.strip("\r\n") + "\n")
         elif isinstance(item, CellItem):
-            parts.append(cell_markdown(item.steps))
+            parts.append(cell_markdown(item.steps, report.digits))
     parts.append(_claims_table(report))
     parts.append(_constants_table(report))
     return "\n".join(part for part in parts if part)
@@ -73,17 +73,19 @@ def _provenance(report: Report) -> str:
         + "."
     )
     lines.append(f"Numbers recorded to {report.digits} significant figures.")
+    outcome = escape_markdown(outcome_sentence(report))
+    lines.append(f"**{outcome}**" if report.has_problems else outcome)
     return "  \n".join(lines) + "\n"
 
 
-def cell_markdown(steps: tuple[Step, ...]) -> str:
+def cell_markdown(steps: tuple[Step, ...], digits: int) -> str:
     """One calc cell as a list: each statement as written, then what it recorded."""
     if not steps:
         return ""
-    return "".join(step_markdown(step) for step in steps)
+    return "".join(step_markdown(step, digits) for step in steps)
 
 
-def step_markdown(step: Step) -> str:
+def step_markdown(step: Step, digits: int) -> str:
     result = step.result
     head = f"- line {step.source.line}: {code_span(step.source.text)}"
     if result.status != "ok":
@@ -96,7 +98,7 @@ def step_markdown(step: Step) -> str:
         return head + "\n"
     if result.kind == "plot":
         return f"{head} →\n\n{_fenced(lines[1:])}\n"
-    if result.kind == "table" and (table := read_table_record(result.record)) is not None:
+    if (table := result_table(result, digits)) is not None:
         return f"{head} →\n\n{sweep_table_markdown(table)}\n"
     if len(lines) == 1:
         return f"{head} → {code_span(lines[0])}\n"

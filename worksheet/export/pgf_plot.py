@@ -79,7 +79,7 @@ def plot_pgfplots(data: PlotData) -> str:
         "unbounded coords=jump",
         "filter discard warning=false",
         "legend cell align=left",
-        "legend style={at={(0.5,-0.22)}, anchor=north, font=\\small}",
+        "legend style={at={(0.5,-0.34)}, anchor=north, font=\\small}",
     ]
     lines = [
         "\\begin{center}",

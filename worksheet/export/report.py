@@ -96,6 +96,52 @@ class Report:
     def claims(self) -> tuple[Step, ...]:
         return tuple(step for step in self.steps if step.is_claim)
 
+    @property
+    def errors(self) -> tuple[Step, ...]:
+        """Steps that could not be evaluated (their dependents are skipped)."""
+        return tuple(step for step in self.steps if step.result.status == "error")
+
+    @property
+    def has_problems(self) -> bool:
+        """A claim that does not hold or a line that errs: the export must say so."""
+        return bool(self.errors) or any(step.result.status != "ok" for step in self.claims)
+
+
+def _count(number: int, word: str) -> str:
+    return f"{number} {word}" + ("" if number == 1 else "s")
+
+
+def outcome_sentence(report: Report) -> str:
+    """One sentence every export shows near the top (and the command line prints on error).
+
+    >>> outcome_sentence(Report("t", None, "D", "D", 4, True, (), ()))
+    'The sheet makes no claim; every line was evaluated.'
+    """
+    claims = report.claims
+    held = sum(1 for step in claims if step.result.status == "ok")
+    failed = sum(1 for step in claims if step.result.status == "failed")
+    unchecked = len(claims) - held - failed
+    errors = report.errors
+    if not report.has_problems:
+        if not claims:
+            return "The sheet makes no claim; every line was evaluated."
+        if len(claims) == 1:
+            return "The sheet's one claim holds; every line was evaluated."
+        return f"All {len(claims)} claims hold; every line was evaluated."
+    parts = []
+    if failed:
+        parts.append(
+            f"{failed} of {_count(len(claims), 'claim')} {'fails' if failed == 1 else 'fail'}"
+        )
+    if unchecked:
+        verb = "was" if unchecked == 1 else "were"
+        parts.append(f"{_count(unchecked, 'claim')} {verb} not checked")
+    if errors:
+        lines = ", ".join(str(step.source.line) for step in errors)
+        word = "line errs" if len(errors) == 1 else "lines err"
+        parts.append(f"{len(errors)} {word} ({'line' if len(errors) == 1 else 'lines'} {lines})")
+    return "Not everything holds: " + "; ".join(parts) + "."
+
 
 @dataclass(frozen=True)
 class ValueText:
@@ -130,8 +176,14 @@ def value_text(result: StatementResult, digits: int) -> ValueText | None:
     """
     if result.value is None or result.status != "ok":
         return None
-    number = format_number(result.value, digits)
-    finite = math.isfinite(result.value)
+    if result.precision is not None and isinstance(result.detail, str):
+        # The guard's high-precision value, as recorded: beyond the double range the
+        # double value is inf or 0, which the record (rightly) does not show.
+        number = result.detail
+        finite = True
+    else:
+        number = format_number(result.value, digits)
+        finite = math.isfinite(result.value)
     mantissa, _, exponent_text = number.partition("e")
     exponent = int(exponent_text) if exponent_text else None
     uncertainty = None

@@ -1,20 +1,20 @@
-"""A ``table`` statement's record read back into headers and cells, for real tables.
+"""A ``table`` or ``plot`` statement's numbers as headers and cells, for real tables.
 
-The engine records a sweep as fixed-width text: the statement, a header line, one line per
-row, perhaps a closing note in parentheses. Cells are numbers without spaces, so the
-column starts are where the first row's cells start; headers (which may hold spaces, as
-in ``M [kg]``) are cut at those positions.
+Built from the structured data the engine attaches to the result (the columns of a table,
+the series of a plot), never from the fixed-width record; cells are in the recorded
+notation (``format_number`` to the sheet's digits), so they read as the result block does.
 """
 
 from __future__ import annotations
 
-import re
+import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 
+from worksheet.engine import StatementResult
 from worksheet.engine.formatting import format_number
 from worksheet.engine.plots import PlotData
-
-_CELL = re.compile(r"\S+")
+from worksheet.engine.sweeps import TableColumn
 
 
 @dataclass(frozen=True)
@@ -30,46 +30,38 @@ class SweepTable:
     notes: tuple[str, ...]
 
 
-def split_header(header: str) -> Column:
-    """``T_H [K]`` into name and unit (the form the engine writes headers in)."""
-    name, _, rest = header.strip().partition(" [")
-    return Column(name.strip(), rest[:-1] if rest.endswith("]") else rest)
+def result_table(result: StatementResult, digits: int) -> SweepTable | None:
+    """The table of a ``table`` result, or None when it has none (an error, another kind).
 
-
-def read_table_record(record: str | None) -> SweepTable | None:
-    """The table in a ``table`` record, or None when the record is not one.
-
-    >>> read_table_record("table M = 1 [kg], 2 [kg]: T_H:\\n  M [kg]  T_H [K]\\n"
-    ...                   "  1.000   1.227e23\\n  2.000   6.135e22").rows
+    >>> from worksheet.engine.sweeps import TableColumn
+    >>> r = StatementResult(3, "table", "table ...", "ok", detail=(
+    ...     TableColumn("M", "kg", (1.0, 2.0)), TableColumn("T_H", "K", (1.227e23, 6.135e22))))
+    >>> result_table(r, 4).rows
     (('1.000', '1.227e23'), ('2.000', '6.135e22'))
     """
-    if not record:
+    detail = result.detail
+    if result.kind != "table" or result.status != "ok" or not detail:
         return None
-    lines = record.split("\n")[1:]
-    body = [line for line in lines[1:] if line.strip() and not line.strip().startswith("(")]
-    notes = tuple(line.strip() for line in lines[1:] if line.strip().startswith("("))
-    if not lines or not body:
-        return None
-    starts = [match.start() for match in _CELL.finditer(body[0])]
-    rows = tuple(tuple(_CELL.findall(line)) for line in body)
-    if any(len(row) != len(starts) for row in rows):
-        return None
-    header = lines[0]
-    bounds = [*starts[1:], len(header)]
-    columns = tuple(
-        split_header(header[start:end]) for start, end in zip(starts, bounds, strict=True)
-    )
-    return SweepTable(columns, rows, notes)
+    return columns_table(detail, digits)
+
+
+def columns_table(columns: Sequence[TableColumn], digits: int) -> SweepTable:
+    """Columns of numbers as a table in the recorded notation; not-finite cells counted."""
+    heads = tuple(Column(c.name, c.unit) for c in columns)
+    count = len(columns[0].values) if columns else 0
+    rows = tuple(tuple(format_number(c.values[i], digits) for c in columns) for i in range(count))
+    bad = sum(1 for c in columns[1:] for v in c.values if not math.isfinite(v))
+    notes = (f"({bad} cells are not finite numbers in double precision)",) if bad else ()
+    return SweepTable(heads, rows, notes)
 
 
 def plot_table(data: PlotData, digits: int) -> SweepTable:
     """A plot's numbers as a table (the swept column first), in the recorded notation."""
-    columns = (Column(data.x_name, data.x_unit), *(Column(s.name, s.unit) for s in data.series))
-    rows = tuple(
-        (format_number(x, digits), *(format_number(s.values[i], digits) for s in data.series))
-        for i, x in enumerate(data.x_values)
+    columns = (
+        TableColumn(data.x_name, data.x_unit, data.x_values),
+        *(TableColumn(s.name, s.unit, s.values) for s in data.series),
     )
-    return SweepTable(columns, rows, ())
+    return columns_table(columns, digits)
 
 
 def split_number(cell: str) -> tuple[str, int | None]:
