@@ -180,8 +180,9 @@ def sampled_record(
         text = f"{head} = no finite samples ({summary.count} drawn)"
         return text, "no finite samples"
     median = format_number(summary.median, digits) + (f" {unit}" if unit else "")
-    message = note + _not_finite_note(summary)
-    return f"{head} = {median}{summary.record_tail(digits)} ({message})", message
+    note += _not_finite_note(summary)
+    tail = summary.record_tail(digits)
+    return f"{head} = {median}{tail} ({note})", f"{tail.removeprefix(', ')}; {note}"
 
 
 def sampled_result(

@@ -33,6 +33,7 @@ from worksheet.export.report import (
     value_text,
     written_with_verb,
 )
+from worksheet.export.sampled import fraction_latex, ranged_latex, sampled_latex
 from worksheet.export.sweep_table import SweepTable, is_number, read_table_record
 from worksheet.syntax import parse_expression
 from worksheet.syntax import tree as t
@@ -82,7 +83,11 @@ def latex_document(report: Report, standalone: bool = True) -> str:
 
 def has_plots(report: Report) -> bool:
     """Whether pgfplots is needed (only then is it loaded, so other sheets need no more)."""
-    return any(step.result.plot is not None and step.result.status == "ok" for step in report.steps)
+    return any(
+        (step.result.plot is not None or step.result.kind == "histogram")
+        and step.result.status == "ok"
+        for step in report.steps
+    )
 
 
 def latex_body(report: Report) -> str:
@@ -163,6 +168,8 @@ def step_math(step: Step, digits: int) -> _MathLine | None:
         right = "= " + expr_latex(tree.expr)
         if tree.uncertainty is not None:
             right += _uncertainty_latex(tree.uncertainty)
+        if tree.ranged is not None:
+            right += ranged_latex(tree.ranged)
         right += _symbolic(step, tree.expr) + shown_value
         return _MathLine(name_latex(tree.name), right, _where(step))
     if isinstance(tree, t.Display):
@@ -214,6 +221,7 @@ def _check_math(step: Step, tree: t.Check) -> _MathLine:
         right += "\\quad\\text{within }" + expr_latex(tree.absolute_tolerance)
     elif tree.tolerance is not None:
         right += "\\quad\\text{within }" + tolerance_latex(tree.tolerance)
+    right += fraction_latex(tree)
     note = f"claim, {_where(step)}: {step.status_word}"
     return _MathLine(expr_latex(tree.left), right, note)
 
@@ -235,6 +243,8 @@ def step_text(step: Step) -> str:
         table = read_table_record(result.record)
         if table is not None:
             return head + "\n" + sweep_table_latex(table)
+    if (drawn := sampled_latex(result)) is not None:
+        return head + "\n" + drawn
     if len(lines) == 1:
         # One line (scaling, estimate, ...): breakable at spaces, so it stays on the page.
         return head + "\\\\\n" + texttt(lines[0], keep_spaces=False) + "\n\n"
