@@ -10,13 +10,16 @@ numpy's distribution methods, whose algorithms numpy's compatibility policy allo
 change between builds. The transforms use numpy's exp, log, sqrt and cos, which may differ
 between CPUs in the last bit; recorded numbers are quantiles rounded to the sheet's
 digits, so such a difference could show only where a quantile sits on a rounding boundary.
-Quantiles use ``numpy.quantile(method="linear")`` (Hyndman and Fan's definition 7).
+Quantiles follow Hyndman and Fan's definition 7 (Amer. Statist. 50 (1996) 361; numpy's
+default ``linear`` method), computed here from one sort of the samples: for a sorted
+sample x of size n, Q(p) = x[j] + g (x[j+1] - x[j]) with j + g = (n - 1) p.
 """
 
 from __future__ import annotations
 
 import hashlib
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -177,21 +180,33 @@ class SampledSummary:
         )
 
 
+def sorted_quantiles(ordered: Any, probabilities: Sequence[float]) -> list[float]:
+    """Hyndman and Fan's definition 7 on samples already sorted (see the module's text)."""
+    last = ordered.size - 1
+    values = []
+    for p in probabilities:
+        position = last * p
+        j = min(math.floor(position), last)
+        g = position - j
+        low = float(ordered[j])
+        values.append(low if g == 0 else low + g * (float(ordered[min(j + 1, last)]) - low))
+    return values
+
+
 def summarize(name: str, unit: str, shown: Any, bins: int = HISTOGRAM_BINS) -> SampledSummary:
     """Median, central intervals and a histogram of samples already in the shown unit."""
     np = _np()
     values = np.asarray(shown, dtype=float)
-    finite = values[np.isfinite(values)]
+    finite = values[np.isfinite(values)]  # a fresh array: sorted in place
+    finite.sort()
     not_finite = int(values.size - finite.size)
     if finite.size == 0:
         nan = math.nan
         return SampledSummary(name, unit, int(values.size), not_finite, nan, ())
-    quantiles = np.quantile(
-        finite, [0.5] + [q for _, lo, hi in INTERVALS for q in (lo, hi)], method="linear"
-    )
-    median = float(quantiles[0])
+    quantiles = sorted_quantiles(finite, [0.5] + [q for _, lo, hi in INTERVALS for q in (lo, hi)])
+    median = quantiles[0]
     intervals = tuple(
-        Interval(content, float(quantiles[1 + 2 * k]), float(quantiles[2 + 2 * k]))
+        Interval(content, quantiles[1 + 2 * k], quantiles[2 + 2 * k])
         for k, (content, _, _) in enumerate(INTERVALS)
     )
     histogram = histogram_of(name, unit, finite, median, intervals, bins)
@@ -201,15 +216,17 @@ def summarize(name: str, unit: str, shown: Any, bins: int = HISTOGRAM_BINS) -> S
 def histogram_of(
     name: str,
     unit: str,
-    finite: Any,
+    ordered: Any,
     median: float,
     intervals: tuple[Interval, ...],
     bins: int = HISTOGRAM_BINS,
 ) -> HistogramData:
-    """Equal bins over the central 99.8% of the samples (log10 bins for positive values
-    spanning more than a decade), so one stray sample does not flatten the picture."""
+    """Equal bins over the central 99.8% of the sorted samples (log10 bins for positive
+    values spanning more than a decade), so one stray sample does not flatten the picture.
+    A bin holds the samples from its lower edge up to, not including, its upper edge; the
+    last bin includes its upper edge."""
     np = _np()
-    low, high = (float(v) for v in np.quantile(finite, [0.001, 0.999], method="linear"))
+    low, high = sorted_quantiles(ordered, [0.001, 0.999])
     scale = "log" if low > 0 and high / low > 10 else "lin"
     if high <= low:
         low, high = (low - 0.5, high + 0.5) if low == 0 else (low * 0.99, high * 1.01)
@@ -218,10 +235,12 @@ def histogram_of(
         scale = "lin"
     if scale == "log":
         edges = np.logspace(math.log10(low), math.log10(high), bins + 1)
-        counts, _ = np.histogram(np.log10(finite), np.log10(edges))
+        edges[0], edges[-1] = low, high
     else:
         edges = np.linspace(low, high, bins + 1)
-        counts, _ = np.histogram(finite, edges)
+    starts = np.searchsorted(ordered, edges[:-1], side="left")
+    end = np.searchsorted(ordered, edges[-1:], side="right")
+    counts = np.diff(np.concatenate([starts, end]))
     return HistogramData(
         name,
         unit,

@@ -156,6 +156,8 @@ def expression_samples(
             result = evaluate(expr, mapping, numpy_backend())  # type: ignore[arg-type]
     except MissingValue as err:
         raise EvaluationError(f"'{err.symbol.name}' has no value, so it cannot be sampled") from err
+    if isinstance(result, np.ndarray) and result.shape == (ctx.samples,):
+        return result if result.dtype == float else result.astype(float)
     return np.array(np.broadcast_to(np.asarray(result, dtype=float), (ctx.samples,)))
 
 
@@ -163,6 +165,8 @@ def expression_samples(
 
 
 def _shown(samples: Any, factor: float, offset: float) -> Any:
+    if factor == 1.0 and offset == 0.0:
+        return samples
     return (samples - offset) / factor
 
 
