@@ -20,6 +20,8 @@ import math
 import numpy as np
 import pytest
 import scipy.stats as st
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st_h
 
 from worksheet.engine import make_context
 from worksheet.engine.distributions import Spread, summarize
@@ -302,3 +304,82 @@ def test_issue13_context_defaults_are_reproducible():
     ctx = make_context("CODATA2022")
     assert (ctx.seed, ctx.samples) == (0, 100_000)
     ctx.worker.close()
+
+
+# --- incremental runs and hostile input ------------------------------------------------------
+
+
+def test_issue13_an_edit_resamples_only_what_it_changes():
+    from worksheet.engine import SheetEvaluator, split_statements
+
+    ctx = make_context("CODATA2022", digits=4, seed=5, samples=5000)
+    body = "a = 1 .. 10 log\nb = 2 .. 3 lin\nq = a*b\nr = b^2\n"
+    evaluator = SheetEvaluator(ctx)
+    first = evaluator.run(split_statements(body, 1))
+    edited = body.replace("a = 1 .. 10 log", "a = 1 .. 100 log")
+    second = evaluator.run(split_statements(edited, 1))
+    fresh = SheetEvaluator(ctx).run(split_statements(edited, 1))
+    assert [r.record for r in second] == [r.record for r in fresh]
+    assert second[0].record != first[0].record and second[2].record != first[2].record
+    assert second[3] is first[3]  # r reads only b: kept, not recomputed
+    ctx.worker.close()
+
+
+RANGE_PIECES = [
+    "x",
+    "=",
+    "1",
+    "1e-3",
+    "[m]",
+    "..",
+    "log",
+    "lin",
+    "within",
+    "factor",
+    "3",
+    "+-",
+    "20%",
+    "in",
+    "[km]",
+    "-",
+    "0",
+    "check",
+    ">",
+    "95%",
+    "variance",
+    "histogram",
+    "(",
+    ")",
+    "*",
+]
+
+
+@settings(max_examples=150, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st_h.lists(st_h.sampled_from(RANGE_PIECES), min_size=1, max_size=12))
+def test_issue13_range_syntax_fuzz_gives_a_result_or_a_located_error(pieces):
+    text = " ".join(pieces)
+    try:
+        parse_statement(text)
+    except ParseError as err:
+        assert err.line is not None and err.message
+
+
+def test_issue13_hostile_sheets_end_as_recorded_errors():
+    body = "\n".join(
+        [
+            "x = 1e300 .. 1e308 log",
+            "y = x*x*x",  # overflows to inf in every sample
+            "z = 0 .. 0 lin",
+            "w = 1 [m] within factor 1e400",
+            "v = 1 .. 2 lin in [m]",
+            "u = 3 .. 4 lin\ncheck u > 1 [m] in 50%",
+        ]
+    )
+    run = run_body(body, samples=1000)
+    records = [r.record for r in run.results]
+    assert all(r.startswith("line ") for r in records[1:5] + records[6:])
+    assert "none of the 1000 samples is a finite number" in records[1]
+    assert "below the high end" in records[2]
+    assert "at most 1e6" in records[3]
+    assert "cannot express" in records[4]
+    assert "cannot compare" in records[6]

@@ -47,6 +47,10 @@ FIRST_ORDER_TOLERANCE = 0.1
 """First order is used for the variance shares when its total is within 10% of the
 samples' variance; otherwise the shares come from the samples."""
 
+MAX_SAMPLE_BYTES = 2 * 1024**3
+"""Samples held at once (every sampled quantity keeps its own array) are capped here, so a
+long sheet with a large ``samples`` stops with a message instead of exhausting memory."""
+
 SHARE_BINS = 50
 """Rank bins for the correlation ratio Var(E[Y | X_i]) / Var(Y) estimated from samples."""
 
@@ -124,6 +128,11 @@ def samples_of(binding: Binding, ctx: Context, values: Mapping[sympy.Symbol, Bin
     cached = _SAMPLES.get(binding)
     if cached is not None:
         return cached
+    if (len(_SAMPLES) + 1) * ctx.samples * 8 > MAX_SAMPLE_BYTES:
+        raise EvaluationError(
+            f"sampling {binding.name} would hold more than {MAX_SAMPLE_BYTES // 1024**3} GiB "
+            f"of samples; lower 'samples' in the front matter (now {ctx.samples})"
+        )
     if binding.spread is not None:
         drawn = binding.spread.draw(ctx.samples, ctx.seed, binding.name)
     elif binding.input_uncertainty and binding.value is not None:
@@ -181,8 +190,10 @@ def sampled_record(
 ) -> tuple[str, str]:
     """The recorded line and the message of a sampled quantity."""
     if not math.isfinite(summary.median):
-        text = f"{head} = no finite samples ({summary.count} drawn)"
-        return text, "no finite samples"
+        raise EvaluationError(
+            f"{head}: none of the {summary.count} samples is a finite number "
+            "(overflow, or outside a function's domain, in every sample)"
+        )
     median = format_number(summary.median, digits) + (f" {unit}" if unit else "")
     note += _not_finite_note(summary)
     tail = summary.record_tail(digits)

@@ -15,6 +15,9 @@ MAX_NESTING = 60
 MAX_DECIMAL_EXPONENT = 400
 """Literals like ``1e999999`` would build huge exact integers; refuse them."""
 
+MAX_FACTOR = 1e6
+"""'within factor F' is a log-normal spread; wider than this is a log range's job."""
+
 RESERVED = frozenset({"check", "in", "within"})
 COMPARISONS = ("==", "<=", ">=", "<", ">", "~")
 
@@ -261,8 +264,12 @@ class _Parser:
                     f"expected the factor (a number above 1), found {token.describe()}"
                 )
             factor = number_node(self.take()).value
-            if factor <= 1:
-                raise self.error("the factor of 'within factor F' must be above 1", token)
+            if not 1 < factor <= MAX_FACTOR:
+                raise self.error(
+                    "the factor of 'within factor F' must be above 1 and at most 1e6 "
+                    "(for a wider spread write a log range, 'a .. b log')",
+                    token,
+                )
             return low, t.Ranged("factor", factor=factor, line=word.line, column=word.column)
         return low, None
 
