@@ -74,14 +74,18 @@ class CalcCellView(Vertical):
         """
         parts = result_parts(results)
         widgets = self._result_widgets()
-        kinds = [chart_class(part.data) if isinstance(part, PlotPart) else ResultLines
-                 for part in parts]
+        kinds = [
+            chart_class(part.data) if isinstance(part, PlotPart) else ResultLines for part in parts
+        ]
         if kinds != [type(widget) for widget in widgets]:
             for widget in widgets[1:]:
                 widget.remove()
             fresh: list[ResultLines | PlotChart] = [
-                chart_widget(part.data, part.chart_lines) if isinstance(part, PlotPart)
-                else ResultLines() for part in parts[1:]]
+                chart_widget(part.data, part.chart_lines)
+                if isinstance(part, PlotPart)
+                else ResultLines()
+                for part in parts[1:]
+            ]
             if fresh:
                 self.mount_all(fresh)
             widgets = [widgets[0], *fresh]
