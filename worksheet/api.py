@@ -173,6 +173,7 @@ class QuantityResult:
     record: str | None
     symbolic: sympy.Expr | None
     symbolic_text: str | None
+    sampled: Any  # median, 68%/95% intervals, histogram: where a ranged input is read
     _bridge: _UnitBridge = field(repr=False, compare=False)
 
     @property
@@ -351,6 +352,7 @@ def _quantity_result(
         record=result.record,
         symbolic=symbolic,
         symbolic_text=result.symbolic,
+        sampled=result.sampled,
         _bridge=bridge,
     )
 

@@ -21,6 +21,12 @@ from worksheet.engine import (
     split_statements,
 )
 from worksheet.engine.budget import DEFAULT_SECONDS
+from worksheet.engine.distributions import (
+    DEFAULT_SAMPLES,
+    DEFAULT_SEED,
+    MAX_SAMPLES,
+    MIN_SAMPLES,
+)
 from worksheet.errors import DocumentError
 
 
@@ -34,6 +40,8 @@ class SheetSettings:
     pinned: bool = False
     warnings: tuple[str, ...] = ()
     guard: bool = True
+    seed: int = DEFAULT_SEED
+    samples: int = DEFAULT_SAMPLES
 
 
 def read_settings(doc: SheetDocument) -> SheetSettings:
@@ -83,7 +91,27 @@ def read_settings(doc: SheetDocument) -> SheetSettings:
             _key_line(doc, "precision_guard"),
         )
     guard = guard_text in ("on", "true", "yes")
-    return SheetSettings(dataset, digits, seconds, pinned, tuple(warnings), guard)
+    seed = _whole_number(doc, "seed", DEFAULT_SEED, 0, 2**63 - 1)
+    samples = _whole_number(doc, "samples", DEFAULT_SAMPLES, MIN_SAMPLES, MAX_SAMPLES)
+    return SheetSettings(dataset, digits, seconds, pinned, tuple(warnings), guard, seed, samples)
+
+
+def _whole_number(doc: SheetDocument, key: str, default: int, low: int, high: int) -> int:
+    """A whole-number front-matter key (``seed``, ``samples``) within bounds."""
+    text = doc.get(key)
+    if text is None or not text.strip():
+        return default
+    cleaned = text.strip().replace("_", "")
+    if not cleaned.isdigit():
+        raise DocumentError(
+            f"front matter '{key}: {text.strip()}' is not a whole number", _key_line(doc, key)
+        )
+    value = int(cleaned)
+    if not low <= value <= high:
+        raise DocumentError(
+            f"front matter '{key}' must be from {low} to {high}", _key_line(doc, key)
+        )
+    return value
 
 
 def _key_line(doc: SheetDocument, key: str) -> int | None:
@@ -161,14 +189,26 @@ class SheetRunner:
     """Runs documents, keeping one evaluator per settings so re-runs are incremental."""
 
     def __init__(self) -> None:
-        self._contexts: dict[tuple[str, int, float, bool], Context] = {}
-        self._evaluators: dict[tuple[str, int, float, bool], SheetEvaluator] = {}
+        self._contexts: dict[tuple, Context] = {}
+        self._evaluators: dict[tuple, SheetEvaluator] = {}
 
     def evaluator(self, settings: SheetSettings) -> SheetEvaluator:
-        key = (settings.dataset, settings.digits, settings.seconds, settings.guard)
+        key = (
+            settings.dataset,
+            settings.digits,
+            settings.seconds,
+            settings.guard,
+            settings.seed,
+            settings.samples,
+        )
         if key not in self._evaluators:
             context = make_context(
-                settings.dataset, settings.digits, settings.seconds, settings.guard
+                settings.dataset,
+                settings.digits,
+                settings.seconds,
+                settings.guard,
+                settings.seed,
+                settings.samples,
             )
             self._contexts[key] = context
             self._evaluators[key] = SheetEvaluator(context)

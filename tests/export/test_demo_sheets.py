@@ -197,6 +197,7 @@ def test_demo_html_renders(tmp_path, path, runs):
     for claim in (r for r in run.results if r.kind == "check"):
         assert html.escape(claim.text, quote=False) in dom
     plots = sum(1 for r in run.results if r.kind == "plot" and r.plot is not None)
+    plots += sum(1 for r in run.results if r.kind == "histogram" and r.sampled is not None)
     assert dom.count("<svg") == plots
 
 

@@ -49,6 +49,7 @@ class Binding:
     source: str = ""  # dataset source for constants
     params: tuple[str, ...] = ()  # relations only
     body: Expr | None = None  # relations only
+    spread: Any = None  # a ranged input's distribution (engine.distributions.Spread)
     _form: sympy.Expr | None = field(default=None, repr=False)
     _resolver: Callable[[str], Binding | None] | None = field(default=None, repr=False)
     serial: int = field(default_factory=lambda: next(_SERIALS), repr=False)

@@ -11,6 +11,7 @@ import sympy
 from worksheet.constants import DEFAULT_DATASET, Dataset, load_dataset
 from worksheet.engine.bindings import Binding, Origin
 from worksheet.engine.budget import DEFAULT_SECONDS, Worker
+from worksheet.engine.distributions import DEFAULT_SAMPLES, DEFAULT_SEED
 from worksheet.syntax.units import parse_unit
 from worksheet.units.registry import UnitRegistry
 
@@ -24,6 +25,8 @@ class Context:
     digits: int = 4
     seconds: float = DEFAULT_SECONDS
     guard: bool = True  # the precision guard (SPEC section 8)
+    seed: int = DEFAULT_SEED  # for ranged inputs (front matter 'seed')
+    samples: int = DEFAULT_SAMPLES  # samples per ranged input (front matter 'samples')
     worker: Worker = field(default_factory=Worker)
     unit_values: dict[sympy.Symbol, float] = field(default_factory=dict)
     _constants: Mapping[str, Binding] | None = None
@@ -53,7 +56,17 @@ def make_context(
     digits: int = 4,
     seconds: float = DEFAULT_SECONDS,
     guard: bool = True,
+    seed: int = DEFAULT_SEED,
+    samples: int = DEFAULT_SAMPLES,
 ) -> Context:
     """A context for a dataset name (default: the newest CODATA)."""
     data = load_dataset(dataset or DEFAULT_DATASET)
-    return Context(data, UnitRegistry(data), digits=digits, seconds=seconds, guard=guard)
+    return Context(
+        data,
+        UnitRegistry(data),
+        digits=digits,
+        seconds=seconds,
+        guard=guard,
+        seed=seed,
+        samples=samples,
+    )

@@ -31,6 +31,7 @@ class StatementResult:
     record: str | None = None
     precision: str | None = None  # set when the precision guard found a loss: why
     plot: Any = None  # PlotData for 'plot' statements
+    sampled: Any = None  # SampledSummary / VarianceBudget for quantities with ranged inputs
     form: Any = field(default=None, compare=False, repr=False)
     """The sympy expression behind ``symbolic``, printed only when someone asks."""
     detail: Any = field(default=None, compare=False, repr=False)
@@ -60,6 +61,10 @@ class StatementResult:
             data.pop("plot")
         else:
             data["plot"] = data["plot"].to_json()
+        if data["sampled"] is None:
+            data.pop("sampled")
+        else:
+            data["sampled"] = data["sampled"].to_json()
         if data["uncertainty"] is None:
             data.pop("uncertainty")
         precision = data.pop("precision")

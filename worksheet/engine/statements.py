@@ -27,6 +27,17 @@ from worksheet.engine.formatting import (
     format_uncertainty,
 )
 from worksheet.engine.results import StatementResult
+from worksheet.engine.sampling import (
+    evaluate_histogram,
+    evaluate_variance,
+    expression_ranged,
+    expression_samples,
+    is_ranged,
+    ranged_definition,
+    sampled_check,
+    sampled_result,
+    samples_of,
+)
 from worksheet.engine.sweeps import evaluate_scaling, evaluate_table
 from worksheet.engine.translate import (
     INFINITY,
@@ -63,6 +74,8 @@ KINDS = {
     t.Table: "table",
     t.Plot: "plot",
     t.Estimate: "estimate",
+    t.Variance: "variance",
+    t.Histogram: "histogram",
     t.Blank: "blank",
 }
 DEFAULT_NUMERIC_TOLERANCE = Fraction(1, 10**9)
@@ -126,6 +139,10 @@ class StatementEvaluator:
                 from worksheet.engine.plots import evaluate_plot
 
                 return evaluate_plot(self, stmt), None
+            if isinstance(stmt, t.Variance):
+                return evaluate_variance(self, stmt), None
+            if isinstance(stmt, t.Histogram):
+                return evaluate_histogram(self, stmt), None
             if isinstance(stmt, t.Blank):
                 return StatementResult(stmt.line, kind, "", "ok"), None
             raise EvaluationError(
@@ -297,6 +314,8 @@ class StatementEvaluator:
 
     # --- statements ---
     def _definition(self, stmt: t.Definition) -> tuple[StatementResult, Binding | None]:
+        if stmt.ranged is not None:
+            return ranged_definition(self, stmt)
         self._refuse_constant_name(stmt.name, stmt)
         tr = self.translator()
         quantity = self.quantity(tr, stmt.expr)
@@ -342,6 +361,9 @@ class StatementEvaluator:
             tr.used_verb,
             tuple(tr.numeric_notes),
         )
+        if quantity.si is not None and is_ranged(binding):
+            samples = samples_of(binding, self.ctx, self.values)
+            result = sampled_result(self, result, stmt.name, samples, (unit, factor, offset))
         return result, binding
 
     def _quantity_result(
@@ -651,7 +673,7 @@ class StatementEvaluator:
         tr = self.translator()
         quantity = self.quantity(tr, stmt.expr)
         unit_info = self.output_unit(quantity, stmt.conversion, stmt)
-        return self._quantity_result(
+        result = self._quantity_result(
             stmt,
             "display",
             None,
@@ -661,8 +683,14 @@ class StatementEvaluator:
             tr.used_verb,
             tuple(tr.numeric_notes),
         )
+        if quantity.si is not None and expression_ranged(quantity.typed.expr, self.values):
+            samples = expression_samples(quantity.typed.expr, self.ctx, self.values)
+            result = sampled_result(self, result, to_text(stmt.expr), samples, unit_info)
+        return result
 
     def _check(self, stmt: t.Check) -> StatementResult:
+        if stmt.fraction is not None:
+            return sampled_check(self, stmt)
         tr = self.translator()
         left = self.quantity(tr, stmt.left)
         right = self.quantity(tr, stmt.right)

@@ -37,6 +37,7 @@ from worksheet.export.report import (
     value_text,
     written_with_verb,
 )
+from worksheet.export.sampled import fraction_html, ranged_html, sampled_html
 from worksheet.export.svg_plot import plot_svg
 from worksheet.export.sweep_table import (
     SweepTable,
@@ -162,6 +163,8 @@ def _step_row(step: Step, digits: int) -> str:
         body += plot_figure_html(step, digits)
     elif (table := result_table(result, digits)) is not None:
         body += sweep_table_html(table)
+    elif drawn := sampled_html(result, f"{step.source.text} (line {step.source.line})"):
+        body += drawn
     elif result.record:
         body += '<pre class="record">' + escape(result.record) + "</pre>"
     status = escape(step.status_word) if (result.status != "ok" or step.is_claim) else ""
@@ -232,6 +235,8 @@ def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:
         right = "= " + expr_html(tree.expr)
         if tree.uncertainty is not None:
             right += _uncertainty_html(tree.uncertainty)
+        if tree.ranged is not None:
+            right += ranged_html(tree.ranged)
         right += _symbolic(step, tree.expr) + shown_value
         return name_html(tree.name), right, ""
     if isinstance(tree, t.Display):
@@ -259,6 +264,7 @@ def step_math_html(step: Step, digits: int) -> tuple[str, str, str] | None:
             right += " within " + expr_html(tree.absolute_tolerance)
         elif tree.tolerance is not None:
             right += " within " + tolerance_html(tree.tolerance)
+        right += fraction_html(tree)
         status = "claim " + escape(step.status_word)
         if result.status != "ok" and result.message:
             status += ": " + escape(result.message)

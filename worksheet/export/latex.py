@@ -42,6 +42,7 @@ from worksheet.export.report import (
     value_text,
     written_with_verb,
 )
+from worksheet.export.sampled import fraction_latex, ranged_latex, sampled_latex
 from worksheet.export.sweep_table import (
     Column,
     SweepTable,
@@ -95,7 +96,11 @@ def latex_document(report: Report, standalone: bool = True) -> str:
 
 def has_plots(report: Report) -> bool:
     """Whether pgfplots is needed (only then is it loaded, so other sheets need no more)."""
-    return any(step.result.plot is not None and step.result.status == "ok" for step in report.steps)
+    return any(
+        (step.result.plot is not None or step.result.kind == "histogram")
+        and step.result.status == "ok"
+        for step in report.steps
+    )
 
 
 def latex_body(report: Report) -> str:
@@ -170,6 +175,8 @@ def step_math(step: Step, digits: int) -> str | None:
         right = "= " + expr_latex(tree.expr)
         if tree.uncertainty is not None:
             right += _uncertainty_latex(tree.uncertainty)
+        if tree.ranged is not None:
+            right += ranged_latex(tree.ranged)
         right += _symbolic(step, tree.expr) + shown_value
         return _math(name_latex(tree.name) + " " + right)
     if isinstance(tree, t.Display):
@@ -223,6 +230,7 @@ def _check_math(step: Step, tree: t.Check) -> str:
         right += "\\quad\\text{within }" + expr_latex(tree.absolute_tolerance)
     elif tree.tolerance is not None:
         right += "\\quad\\text{within }" + tolerance_latex(tree.tolerance)
+    right += fraction_latex(tree)
     text = _math(expr_latex(tree.left) + " " + right)
     text += " \\hfill\\mbox{claim: \\textbf{" + escape_text(step.status_word) + "}}"
     if step.result.status != "ok" and step.result.message:
@@ -299,6 +307,8 @@ def step_text(step: Step, digits: int) -> str:
         return head + ": " + escape_text(result.message) + "\n"
     if result.kind == "plot" and result.plot is not None:
         return head + "\n" + plot_pgfplots(result.plot)
+    if (drawn := sampled_latex(result)) is not None:
+        return head + "\n" + drawn
     table = result_table(result, digits)
     if table is not None:
         return head + "\n" + sweep_table_latex(table)

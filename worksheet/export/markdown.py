@@ -11,6 +11,7 @@ import re
 
 from worksheet import CAUTION
 from worksheet.export.report import CellItem, NoteItem, Report, Step, outcome_sentence
+from worksheet.export.sampled import sampled_markdown
 from worksheet.export.sweep_table import SweepTable, result_table
 
 _SPECIAL = re.compile(r"([\\`*_{}\[\]<>#|!~&])")
@@ -96,8 +97,10 @@ def step_markdown(step: Step, digits: int) -> str:
     lines = result.record.split("\n") if result.record else []
     if not lines:
         return head + "\n"
-    if result.kind == "plot":
+    if result.kind in ("plot", "histogram"):
         return f"{head} →\n\n{_fenced(lines[1:])}\n"
+    if (drawn := sampled_markdown(result)) is not None:
+        return f"{head} →\n\n{drawn}\n"
     if (table := result_table(result, digits)) is not None:
         return f"{head} →\n\n{sweep_table_markdown(table)}\n"
     if len(lines) == 1:

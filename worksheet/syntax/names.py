@@ -28,6 +28,8 @@ def referenced_names(stmt: t.AnyStatement) -> set[str]:
         names = _expr_names(stmt.expr)
         if stmt.uncertainty is not None:
             names |= _expr_names(stmt.uncertainty.absolute)
+        if stmt.ranged is not None:
+            names |= _expr_names(stmt.ranged.high)
         return names
     if isinstance(stmt, t.Relation):
         return _expr_names(stmt.expr) - set(stmt.params)
@@ -49,4 +51,6 @@ def referenced_names(stmt: t.AnyStatement) -> set[str]:
         return names
     if isinstance(stmt, t.Estimate):
         return set(stmt.inputs)
+    if isinstance(stmt, t.Variance | t.Histogram):
+        return {stmt.target}
     return set()

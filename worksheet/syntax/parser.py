@@ -15,6 +15,9 @@ MAX_NESTING = 60
 MAX_DECIMAL_EXPONENT = 400
 """Literals like ``1e999999`` would build huge exact integers; refuse them."""
 
+MAX_FACTOR = 1e6
+"""'within factor F' is a log-normal spread; wider than this is a log range's job."""
+
 RESERVED = frozenset({"check", "in", "within"})
 COMPARISONS = ("==", "<=", ">=", "<", ">", "~")
 
@@ -233,6 +236,57 @@ class _Parser:
             return t.Uncertainty(value / 100, None)
         return t.Uncertainty(None, self.expression())
 
+    def ranged(self, low: t.Expr) -> tuple[t.Expr, t.Ranged | None]:
+        """``a .. b log`` / ``a .. b lin`` or ``within factor F`` after a definition's value."""
+        if self.at(".."):
+            dots = self.take()
+            high = self.expression()
+            word = self.peek()
+            if not (word.kind is Kind.NAME and word.text in ("log", "lin")):
+                raise self.error(
+                    "after a range say 'log' (log-uniform) or 'lin' (uniform), as in "
+                    "'1e-3 .. 1e-1 [1/(pc^3*yr)] log'"
+                )
+            self.take()
+            ranged = t.Ranged(word.text, high=high, line=dots.line, column=dots.column)
+            return _shared_unit(low, high), ranged
+        if self.at_word("within"):
+            word = self.take()
+            if not self.at_word("factor"):
+                raise self.error(
+                    "a definition takes 'within factor F' (a log-normal input); a tolerance "
+                    "'within ...' belongs to a 'check'"
+                )
+            self.take()
+            token = self.peek()
+            if token.kind is not Kind.NUMBER:
+                raise self.error(
+                    f"expected the factor (a number above 1), found {token.describe()}"
+                )
+            factor = number_node(self.take()).value
+            if not 1 < factor <= MAX_FACTOR:
+                raise self.error(
+                    "the factor of 'within factor F' must be above 1 and at most 1e6 "
+                    "(for a wider spread write a log range, 'a .. b log')",
+                    token,
+                )
+            return low, t.Ranged("factor", factor=factor, line=word.line, column=word.column)
+        return low, None
+
+
+def _shared_unit(low: t.Expr, high: t.Expr) -> t.Expr:
+    """``1e-3 .. 1e-1 [1/(pc^3*yr)]``: a bare number at the low end takes the high end's unit."""
+    bare = low.operand if isinstance(low, t.Neg) else low
+    if (
+        isinstance(bare, t.Number)
+        and isinstance(high, t.BinOp)
+        and high.op == "*"
+        and isinstance(high.left, t.Number)
+        and isinstance(high.right, t.Unit)
+    ):
+        return t.BinOp("*", low, high.right, line=low.line, column=low.column)
+    return low
+
 
 def number_node(token: Token) -> t.Number:
     literal = token.text
@@ -282,9 +336,13 @@ def parse_statement(text: str, line: int = 1, column: int = 1) -> t.AnyStatement
     if first.kind is Kind.NAME and first.text == "check":
         return _parse_check(parser, pos)
     if first.kind is Kind.NAME and parser.peek(1).kind is Kind.NAME:
-        keyword = {"scaling": _parse_scaling, "table": _parse_table, "plot": _parse_plot}.get(
-            first.text
-        )
+        keyword = {
+            "scaling": _parse_scaling,
+            "table": _parse_table,
+            "plot": _parse_plot,
+            "variance": _parse_variance,
+            "histogram": _parse_histogram,
+        }.get(first.text)
         if keyword:
             return keyword(parser, pos)
     if first.kind is Kind.NAME and first.text == "estimate" and parser.peek(1).kind is Kind.NAME:
@@ -294,13 +352,19 @@ def parse_statement(text: str, line: int = 1, column: int = 1) -> t.AnyStatement
         if second.kind is Kind.OP and second.text == "=":
             check_name(first)
             parser.index = 2
-            expr = parser.expression()
+            expr, ranged = parser.ranged(parser.expression())
             uncertainty = parser.uncertainty()
             conversion = parser.conversion()
             if uncertainty is None:
                 uncertainty = parser.uncertainty()
+            if ranged is not None and uncertainty is not None:
+                raise ParseError(
+                    "a ranged input takes no '+-': the range already says how uncertain it is",
+                    ranged.line,
+                    ranged.column,
+                )
             parser.expect_end()
-            return t.Definition(*pos, first.text, expr, conversion, uncertainty)
+            return t.Definition(*pos, first.text, expr, conversion, uncertainty, ranged)
         if second.kind is Kind.OP and second.text == ":":
             check_name(first)
             parser.index = 2
@@ -370,8 +434,18 @@ def _parse_check(parser: _Parser, pos: tuple[int, int, str]) -> t.Check:
                 tolerance = bound.value
             else:
                 absolute = bound
+    fraction: Fraction | None = None
+    if parser.at_word("in"):
+        parser.take()
+        if not (parser.peek().kind is Kind.NUMBER and parser.peek(1).kind is Kind.PERCENT):
+            raise parser.error("expected the share of samples, as in 'in 95%'")
+        token = parser.peek()
+        fraction = number_node(parser.take()).value / 100
+        parser.take()
+        if not 0 < fraction <= 1:
+            raise parser.error("the share of samples must be above 0% and at most 100%", token)
     parser.expect_end()
-    return t.Check(*pos, op, left, right, tolerance, absolute)
+    return t.Check(*pos, op, left, right, tolerance, absolute, fraction)
 
 
 def _parse_scaling(parser: _Parser, pos: tuple[int, int, str]) -> t.Scaling:
@@ -465,6 +539,26 @@ def _parse_plot(parser: _Parser, pos: tuple[int, int, str]) -> t.Plot:
         y_scale = parser.take().text
     parser.expect_end()
     return t.Plot(*pos, sweep, columns, y_scale)
+
+
+def _parse_variance(parser: _Parser, pos: tuple[int, int, str]) -> t.Variance:
+    """``variance N_det``: each sampled input's share of the variance of N_det."""
+    parser.take()
+    target = parser.expect_name("the sampled quantity").text
+    parser.expect_end()
+    return t.Variance(*pos, target)
+
+
+def _parse_histogram(parser: _Parser, pos: tuple[int, int, str]) -> t.Histogram:
+    """``histogram N_det in [yr^-1]``: the distribution of a sampled quantity."""
+    parser.take()
+    target = parser.expect_name("the sampled quantity").text
+    unit = None
+    if parser.at_word("in"):
+        parser.take()
+        unit, _ = parser.expect_unit()
+    parser.expect_end()
+    return t.Histogram(*pos, target, unit)
 
 
 def _parse_estimate(parser: _Parser, pos: tuple[int, int, str]) -> t.Estimate:

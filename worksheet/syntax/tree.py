@@ -97,6 +97,21 @@ class Uncertainty:
 
 
 @dataclass(frozen=True)
+class Ranged:
+    """A ranged input: ``a .. b log`` / ``a .. b lin``, or ``x within factor F``.
+
+    For a range the definition's expression is the low end and ``high`` the other end; for
+    ``factor`` the expression is the median and ``factor`` the 68% factor (log-normal).
+    """
+
+    shape: str  # 'log', 'lin' or 'factor'
+    high: Expr | None = None
+    factor: Fraction | None = None
+    line: int = 0
+    column: int = 0
+
+
+@dataclass(frozen=True)
 class Statement:
     line: int
     column: int
@@ -109,6 +124,7 @@ class Definition(Statement):
     expr: Expr
     conversion: Conversion | None
     uncertainty: Uncertainty | None
+    ranged: Ranged | None = None
 
 
 @dataclass(frozen=True)
@@ -137,6 +153,7 @@ class Check(Statement):
     right: Expr
     tolerance: Fraction | None  # relative, from 'within 2%' or 'within 1e-6'
     absolute_tolerance: Expr | None  # from 'within 3 [m]'
+    fraction: Fraction | None = None  # from 'in 95%': a claim over the samples
 
 
 @dataclass(frozen=True)
@@ -177,6 +194,21 @@ class Estimate(Statement):
 
 
 @dataclass(frozen=True)
+class Variance(Statement):
+    """``variance N``: each sampled input's share of N's variance."""
+
+    target: str
+
+
+@dataclass(frozen=True)
+class Histogram(Statement):
+    """``histogram N in [U]``: the distribution of a sampled quantity."""
+
+    target: str
+    unit: UnitExpr | None
+
+
+@dataclass(frozen=True)
 class Blank(Statement):
     """A comment-only or empty line: records nothing."""
 
@@ -191,6 +223,8 @@ AnyStatement = (
     | Table
     | Plot
     | Estimate
+    | Variance
+    | Histogram
     | Blank
 )
 

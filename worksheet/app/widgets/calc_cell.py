@@ -13,6 +13,7 @@ from textual.message import Message
 from textual.widgets import Static, TextArea
 
 from worksheet.app.widgets.calc_editor import CalcEditor
+from worksheet.app.widgets.histogram_chart import chart_class, chart_widget
 from worksheet.app.widgets.plot_chart import PlotChart
 from worksheet.app.widgets.result_lines import PlotPart, ResultLines, result_parts
 
@@ -73,12 +74,14 @@ class CalcCellView(Vertical):
         """
         parts = result_parts(results)
         widgets = self._result_widgets()
-        kinds = [isinstance(part, PlotPart) for part in parts]
-        if kinds != [isinstance(widget, PlotChart) for widget in widgets]:
+        kinds = [
+            chart_class(part.data) if isinstance(part, PlotPart) else ResultLines for part in parts
+        ]
+        if kinds != [type(widget) for widget in widgets]:
             for widget in widgets[1:]:
                 widget.remove()
             fresh: list[ResultLines | PlotChart] = [
-                PlotChart(part.data, part.chart_lines)
+                chart_widget(part.data, part.chart_lines)
                 if isinstance(part, PlotPart)
                 else ResultLines()
                 for part in parts[1:]

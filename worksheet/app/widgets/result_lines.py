@@ -78,7 +78,9 @@ def result_parts(results: Iterable[StatementResult]) -> list[Part]:
     lines: list[Line] = []
     for result in results:
         data = getattr(result, "plot", None)
-        if result.kind == "plot" and data is not None and result.record:
+        if result.kind == "histogram":  # a sampled quantity's histogram (issue 13)
+            data = getattr(getattr(result, "sampled", None), "histogram", None)
+        if result.kind in ("plot", "histogram") and data is not None and result.record:
             head, *chart = result.record.split("\n")
             word = STATUS_WORDS.get(result.status, result.status.upper())
             lines.append((result.status, f"{word:<7} {head}"))
