@@ -7,6 +7,7 @@ command line, the app and the Python API all go through it.
 from __future__ import annotations
 
 import dataclasses
+import os
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 
@@ -138,21 +139,47 @@ class SheetRun:
             item = stale_lines.get(id(result))
             if item is not None and result.status == "ok":
                 recorded = item.recorded if item.recorded is not None else "(nothing recorded)"
-                result = dataclasses.replace(
-                    result,
-                    status="stale",
-                    message=f"recorded: {recorded}; recomputed: {item.recomputed}",
-                )
+                message = f"recorded: {recorded}; recomputed: {item.recomputed}"
+                if result.kind == "use":
+                    from worksheet.imports import stale_use_message
+
+                    message = stale_use_message(item.recorded, result)
+                result = dataclasses.replace(result, status="stale", message=message)
             marked.append(result)
         return tuple(marked)
 
 
 class SheetRunner:
-    """Runs documents, keeping one evaluator per settings so re-runs are incremental."""
+    """Runs documents, keeping one evaluator per settings so re-runs are incremental.
 
-    def __init__(self) -> None:
+    ``sheet_path`` is where the sheet lives (its ``use`` paths are relative to it);
+    ``budget`` and ``dataset`` override the front matter (``--budget``, ``--constants``).
+    """
+
+    def __init__(
+        self,
+        sheet_path: str | os.PathLike[str] | None = None,
+        *,
+        budget: float | None = None,
+        dataset: str | None = None,
+    ) -> None:
+        from worksheet.imports import SheetImports
+
+        self.sheet_path = sheet_path
+        self.budget = budget
+        self.dataset = dataset
+        self._imports = SheetImports()
         self._contexts: dict[tuple[str, int, float, bool], Context] = {}
         self._evaluators: dict[tuple[str, int, float, bool], SheetEvaluator] = {}
+
+    def settings(self, doc: SheetDocument) -> SheetSettings:
+        """The front matter's settings with this runner's overrides applied."""
+        settings = read_settings(doc)
+        if self.budget is not None:
+            settings = dataclasses.replace(settings, seconds=self.budget)
+        if self.dataset is not None:
+            settings = dataclasses.replace(settings, dataset=self.dataset)
+        return settings
 
     def evaluator(self, settings: SheetSettings) -> SheetEvaluator:
         key = (settings.dataset, settings.digits, settings.seconds, settings.guard)
@@ -164,10 +191,14 @@ class SheetRunner:
             self._evaluators[key] = SheetEvaluator(context)
         return self._evaluators[key]
 
-    def run(self, doc: SheetDocument) -> SheetRun:
-        settings = read_settings(doc)
+    def run(self, doc: SheetDocument, path: str | os.PathLike[str] | None = None) -> SheetRun:
+        settings = self.settings(doc)
         statements = document_statements(doc)
-        results = self.evaluator(settings).run(statements)
+        evaluator = self.evaluator(settings)
+        pinned = read_settings(doc).dataset
+        scope = self._imports.scope_for(statements, path or self.sheet_path, evaluator.ctx, pinned)
+        evaluator.set_imports(scope)
+        results = evaluator.run(statements)
         per_cell: list[list[str]] = [[] for _ in doc.calc_cells()]
         lines_of: list[list[str]] = []
         for source, result in zip(statements, results, strict=True):

@@ -31,6 +31,7 @@ class StatementResult:
     record: str | None = None
     precision: str | None = None  # set when the precision guard found a loss: why
     plot: Any = None  # PlotData for 'plot' statements
+    imported: Any = None  # 'use' statements: {"file", "library", "sha256", "names"}
     form: Any = field(default=None, compare=False, repr=False)
     """The sympy expression behind ``symbolic``, printed only when someone asks."""
 
@@ -58,6 +59,8 @@ class StatementResult:
             data["plot"] = data["plot"].to_json()
         if data["uncertainty"] is None:
             data.pop("uncertainty")
+        if data["imported"] is None:
+            data.pop("imported")
         precision = data.pop("precision")
         if precision is not None:
             data["precision_loss"] = precision

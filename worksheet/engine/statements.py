@@ -57,6 +57,7 @@ KINDS = {
     t.Table: "table",
     t.Plot: "plot",
     t.Estimate: "estimate",
+    t.Use: "use",
     t.Blank: "blank",
 }
 DEFAULT_NUMERIC_TOLERANCE = Fraction(1, 10**9)

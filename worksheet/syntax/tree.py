@@ -177,6 +177,16 @@ class Estimate(Statement):
 
 
 @dataclass(frozen=True)
+class Use(Statement):
+    """``use "other.sheet.md"`` or ``use A, B from library "blackhole"``: names of another
+    sheet brought into this one (``names`` empty: all of them)."""
+
+    names: tuple[str, ...]
+    path: str
+    library: bool
+
+
+@dataclass(frozen=True)
 class Blank(Statement):
     """A comment-only or empty line: records nothing."""
 
@@ -191,6 +201,7 @@ AnyStatement = (
     | Table
     | Plot
     | Estimate
+    | Use
     | Blank
 )
 
