@@ -13,9 +13,9 @@ def close_matches(word: str, candidates: Iterable[str], count: int = 3) -> list[
     ['check']
     """
     pool = sorted(set(candidates))
-    lowered = {c.lower(): c for c in pool}
-    if word.lower() in lowered and lowered[word.lower()] != word:
-        return [lowered[word.lower()]]
+    same_letters = [c for c in pool if c.lower() == word.lower() and c != word]
+    if same_letters:
+        return same_letters[:count]
     return difflib.get_close_matches(word, pool, n=count, cutoff=0.7)
 
 

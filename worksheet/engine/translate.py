@@ -151,7 +151,9 @@ class Translator:
             self.registry.named(node.id)
             hint = f"; for the unit, write it in brackets: [{node.id}]"
         except (ParseError, DimensionError):
-            hint = ""
+            from worksheet.hints import did_you_mean
+
+            hint = did_you_mean(node.id, [*self.registry.dataset.constants, "pi"])
         return NameResolutionError(f"unknown name '{node.id}'{hint}", node.line, node.column)
 
     def _unit(self, node: t.Unit) -> Typed:
@@ -262,8 +264,12 @@ class Translator:
             raise NameResolutionError(f"'{name}' is not a relation", node.line, node.column)
         binding = self.lookup(name)
         if binding is None:
+            from worksheet.hints import did_you_mean
+
+            hint = did_you_mean(name, BUILTIN_CALLS)
             raise NameResolutionError(
-                f"unknown function '{name}'; the functions are " + ", ".join(sorted(BUILTIN_CALLS)),
+                f"unknown function '{name}'"
+                + (hint or "; the functions are " + ", ".join(sorted(BUILTIN_CALLS))),
                 node.line,
                 node.column,
             )
