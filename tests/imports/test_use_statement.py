@@ -10,8 +10,6 @@ from pathlib import Path
 
 import pytest
 
-pytest_plugins = ["pytester"]
-
 from worksheet import load
 from worksheet.cli import main
 from worksheet.document import read_document
@@ -19,6 +17,8 @@ from worksheet.errors import ParseError
 from worksheet.runner import SheetRunner
 from worksheet.syntax import parse_statement
 from worksheet.syntax import tree as t
+
+pytest_plugins = ["pytester"]
 
 RELATIONS = """---
 title: group relations
