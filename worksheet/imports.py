@@ -110,7 +110,7 @@ class SheetImports:
                 token.append((use.line, "error", message))
                 continue
             reads.update(exports.reads)
-            token.append((use.line, str(place.real), exports.token))
+            token.append((use.line, str(place.real), exports.token, use.names))
             results[use.line] = StatementResult(
                 use.line,
                 "use",
