@@ -214,6 +214,8 @@ def _locate(use: t.Use, here: Path, root: Path) -> _Place:
         folder = Path(os.path.realpath(library_folder()))
         return _Place(Path(os.path.realpath(found)), f'library "{use.path}"', folder)
     text = use.path
+    if any(ord(char) < 32 or char == "\x7f" for char in text):
+        raise UseError("a use path cannot hold control characters")
     if os.path.isabs(text) or text.startswith("~") or (len(text) > 1 and text[1] == ":"):
         raise UseError(
             f"'{text}' is an absolute path; a use path is relative to the sheet that holds it"

@@ -9,11 +9,15 @@ import sys
 from pathlib import Path
 
 import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 
 from worksheet import load
 from worksheet.cli import main
 from worksheet.document import read_document
+from worksheet.engine import make_context, split_statements
 from worksheet.errors import ParseError
+from worksheet.imports import SheetImports
 from worksheet.runner import SheetRunner
 from worksheet.syntax import parse_statement
 from worksheet.syntax import tree as t
@@ -340,3 +344,55 @@ def test_issue14_pytest_plugin_runs_sheets_with_uses(pytester: pytest.Pytester):
     result = pytester.runpytest("--sheets", "-p", "no:cacheprovider")
     assert result.ret == 1  # the recorded digest no longer matches: stale
     result.stdout.fnmatch_lines(["*relations/bh.sheet.md changed*"])
+
+
+def test_issue14_a_relation_reading_a_hidden_name_still_works(tmp_path: Path):
+    (tmp_path / "k.sheet.md").write_text(sheet("k0 = 3 [1/m]\nf(x) = k0*x"))
+    main_sheet = tmp_path / "main.sheet.md"
+    main_sheet.write_text(sheet('use f from "k.sheet.md"\ny = f(2 [m])\nz = k0'))
+    results = by_line(run_file(main_sheet))
+    assert results[8].si_value == 6.0
+    assert results[9].status == "error" and "does not bring it in" in results[9].message
+
+
+def test_issue14_one_runner_sees_an_edited_dependency(group: Path):
+    # the app keeps one runner: a changed used file must not be served from its cache
+    main_sheet = group / "main.sheet.md"
+    main_sheet.write_text(sheet('use r_s from "relations/bh.sheet.md"\nx = r_s'))
+    runner = SheetRunner(main_sheet)
+    try:
+        doc = read_document(main_sheet)
+        first = by_line(runner.run(doc))[8].si_value
+        again = by_line(runner.run(doc))[8].si_value
+        (group / "relations" / "bh.sheet.md").write_text(RELATIONS.replace("5e11", "1e12"))
+        changed = by_line(runner.run(doc))[8].si_value
+    finally:
+        runner.close()
+    assert first == again
+    assert changed == pytest.approx(2 * first, rel=1e-12)
+
+
+_CONTEXT = make_context("CODATA2022")
+LINE_BREAKS = "\n\r\x0b\x0c\x1c\x1d\x1e\x85\u2028\u2029"  # what str.splitlines splits at
+
+
+@settings(
+    max_examples=200, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture]
+)
+@given(path=st.text(st.characters(exclude_characters=LINE_BREAKS), max_size=40))
+def test_issue14_any_use_path_ends_as_a_recorded_line(tmp_path: Path, path: str):
+    main_sheet = tmp_path / "main.sheet.md"
+    body = "use " + json.dumps(path, ensure_ascii=False) + "\nx = 1 [m]"
+    statements = split_statements(body, 7)
+    assert [s.line for s in statements] == [7, 8]  # a quoted '(' continues nothing
+    scope = SheetImports().scope_for(statements, main_sheet, _CONTEXT, "CODATA2022")
+    for result in scope.results.values():  # a path that does not parse: the evaluator's
+        assert result.status in ("ok", "error") and result.record
+
+
+def test_issue14_a_path_with_parentheses(tmp_path: Path):
+    (tmp_path / "notes (old)").mkdir()
+    (tmp_path / "notes (old)" / "bh.sheet.md").write_text(RELATIONS)
+    main_sheet = tmp_path / "main.sheet.md"
+    main_sheet.write_text(sheet('use r_s from "notes (old)/bh.sheet.md"\nx = r_s'))
+    assert run_file(main_sheet).all_hold

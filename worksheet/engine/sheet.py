@@ -62,8 +62,12 @@ def _serial(binding: Binding | None) -> int:
 
 def _paren_balance(line: str) -> int:
     balance = 0
-    in_unit = False
+    in_unit = in_quote = False
     for char in line:
+        if char == '"':  # a quoted path ('use "notes (old).sheet.md"') holds no parentheses
+            in_quote = not in_quote
+        if in_quote or char == '"':
+            continue
         if char == "#" and not in_unit:
             break
         if char == "[":
