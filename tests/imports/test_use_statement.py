@@ -396,3 +396,17 @@ def test_issue14_a_path_with_parentheses(tmp_path: Path):
     main_sheet = tmp_path / "main.sheet.md"
     main_sheet.write_text(sheet('use r_s from "notes (old)/bh.sheet.md"\nx = r_s'))
     assert run_file(main_sheet).all_hold
+
+
+def test_issue14_the_app_service_resolves_uses_from_the_sheet_folder(group: Path, monkeypatch):
+    from worksheet.app.evaluation import RunService  # the app's runner, without a screen
+
+    main_sheet = group / "main.sheet.md"
+    main_sheet.write_text(sheet('use "relations/bh.sheet.md"\nx = r_s in [fm]'))
+    monkeypatch.chdir(group / "relations")
+    service = RunService(main_sheet)
+    try:
+        outcome = service.run(read_document(main_sheet))
+    finally:
+        service.close()
+    assert outcome is not None and outcome.run is not None and outcome.run.all_hold
