@@ -37,6 +37,7 @@ class SheetExports:
     """What one imported sheet offers: every name it defines or brought in itself."""
 
     names: dict[str, Binding]
+    hidden: dict[str, Binding]  # lent to the sheet with the names above, not offered
     reads: dict[str, frozenset[str]]  # name -> sheet names its definition reads
     digest: str
     token: tuple
@@ -176,6 +177,11 @@ class SheetImports:
         names = {
             name: lent.binding for name, lent in child.names.items() if lent.brought_in
         } | evaluator.bindings
+        hidden = {
+            name: lent.binding
+            for name, lent in child.names.items()
+            if not lent.brought_in and name not in names
+        }
         reads = dict(child_reads)
         for source in statements:
             try:
@@ -185,7 +191,7 @@ class SheetImports:
             name = getattr(parsed, "name", None)
             if name is not None and not isinstance(parsed, t.Check | t.Use):
                 reads[name] = frozenset(referenced_names(parsed))
-        exports = SheetExports(names, reads, digest, (digest, child.token))
+        exports = SheetExports(names, hidden, reads, digest, (digest, child.token))
         if len(self._cache) > 64:
             self._cache.clear()
         self._cache[key] = exports
@@ -246,16 +252,17 @@ def _lend(use: t.Use, exports: SheetExports, shown: str) -> dict[str, LentName]:
         if name not in exports.names:
             hint = did_you_mean(name, exports.names)
             raise UseError(f"'{name}' is not defined in {shown}{hint}")
+    lendable = exports.hidden | exports.names
     closure: set[str] = set()
     pending = list(wanted)
     while pending:
         name = pending.pop()
-        if name in closure or name not in exports.names:
+        if name in closure or name not in lendable:
             continue
         closure.add(name)
         pending.extend(exports.reads.get(name, ()))
     return {
-        name: LentName(exports.names[name], use.line, shown, name in wanted)
+        name: LentName(lendable[name], use.line, shown, name in wanted)
         for name in sorted(closure)
     }
 

@@ -410,3 +410,17 @@ def test_issue14_the_app_service_resolves_uses_from_the_sheet_folder(group: Path
     finally:
         service.close()
     assert outcome is not None and outcome.run is not None and outcome.run.all_hold
+
+
+def test_issue14_hidden_names_travel_along_a_chain(group: Path):
+    # main uses all of middle; middle brought in only r_s, computed from M in bh.sheet.md.
+    # A verb in main sees r_s through to M, so M's value must travel with it.
+    (group / "relations" / "middle.sheet.md").write_text(
+        sheet('use r_s from "bh.sheet.md"\nr2 = 2*r_s')
+    )
+    main_sheet = group / "main.sheet.md"
+    main_sheet.write_text(sheet('use "relations/middle.sheet.md"\nq = simplify(r2*c^2/(4*G))\nw = M'))
+    results = by_line(run_file(main_sheet))
+    assert results[8].status == "ok" and results[8].symbolic == "M"
+    assert results[8].si_value == pytest.approx(5e11, rel=1e-12)
+    assert results[9].status == "error" and "does not bring it in" in results[9].message
