@@ -262,8 +262,7 @@ def _lend(use: t.Use, exports: SheetExports, shown: str) -> dict[str, LentName]:
         closure.add(name)
         pending.extend(exports.reads.get(name, ()))
     return {
-        name: LentName(lendable[name], use.line, shown, name in wanted)
-        for name in sorted(closure)
+        name: LentName(lendable[name], use.line, shown, name in wanted) for name in sorted(closure)
     }
 
 

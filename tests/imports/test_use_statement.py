@@ -419,7 +419,8 @@ def test_issue14_hidden_names_travel_along_a_chain(group: Path):
         sheet('use r_s from "bh.sheet.md"\nr2 = 2*r_s')
     )
     main_sheet = group / "main.sheet.md"
-    main_sheet.write_text(sheet('use "relations/middle.sheet.md"\nq = simplify(r2*c^2/(4*G))\nw = M'))
+    body = 'use "relations/middle.sheet.md"\nq = simplify(r2*c^2/(4*G))\nw = M'
+    main_sheet.write_text(sheet(body))
     results = by_line(run_file(main_sheet))
     assert results[8].status == "ok" and results[8].symbolic == "M"
     assert results[8].si_value == pytest.approx(5e11, rel=1e-12)
