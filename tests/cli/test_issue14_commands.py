@@ -182,3 +182,10 @@ def test_issue14_scipy_reference_for_the_starter_radius(tmp_path):
     runner.close()
     radius = next(r for r in run.results if r.name == "r_s")
     assert radius.si_value == pytest.approx(2 * sc.G * 1e12 / sc.c**2, rel=1e-12)
+
+
+def test_issue14_did_you_mean_for_a_sheet_quantity():
+    from worksheet.runner import run_text
+
+    run = run_text(sheet("M_pbh = 1e12 [kg]\nr = 2*G*M_pbhh/c^2"))
+    assert "unknown name 'M_pbhh'; did you mean 'M_pbh'?" in run.results[1].message

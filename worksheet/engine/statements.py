@@ -147,7 +147,12 @@ class StatementEvaluator:
     # --- pieces ---
     def translator(self) -> Translator:
         return Translator(
-            self.lookup, self.ctx.registry, self.ctx.unit_values, self.ctx.worker, self.ctx.seconds
+            self.lookup,
+            self.ctx.registry,
+            self.ctx.unit_values,
+            self.ctx.worker,
+            self.ctx.seconds,
+            sheet_names=lambda: (binding.name for binding in self.values.values()),
         )
 
     def figures(self, expr: sympy.Expr) -> Figures:

@@ -8,7 +8,7 @@ be exact numbers. Names resolve only through the sheet's bindings and the pinned
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field
 from fractions import Fraction
 
@@ -98,6 +98,7 @@ class Translator:
     seconds: float
     used: list[str] = field(default_factory=list)
     used_verb: bool = False
+    sheet_names: Callable[[], Iterable[str]] | None = None  # for "did you mean" only
 
     # --- entry point ---
     def translate(
@@ -153,7 +154,8 @@ class Translator:
         except (ParseError, DimensionError):
             from worksheet.hints import did_you_mean
 
-            hint = did_you_mean(node.id, [*self.registry.dataset.constants, "pi"])
+            known = list(self.sheet_names()) if self.sheet_names else []
+            hint = did_you_mean(node.id, [*self.registry.dataset.constants, "pi", *known])
         return NameResolutionError(f"unknown name '{node.id}'{hint}", node.line, node.column)
 
     def _unit(self, node: t.Unit) -> Typed:
