@@ -205,3 +205,18 @@ def test_issue14_plasma_and_radiation(si):
     assert si["lambda_C_e"] == pytest.approx(compton, rel=1e-9)
     proton = sc.physical_constants["proton Compton wavelength"][0]
     assert si["lambda_Compton"] == pytest.approx(proton, rel=1e-9)
+
+
+@pytest.mark.parametrize("name", SUBJECTS)
+def test_issue14_library_sheets_hold_and_are_current(name):
+    from worksheet.document import read_document
+    from worksheet.runner import SheetRunner
+
+    path = library_sheet(name)
+    runner = SheetRunner(path)
+    try:
+        run = runner.run(read_document(path))
+    finally:
+        runner.close()
+    assert run.settings.pinned is False  # dataset-neutral: they take the user's dataset
+    assert all(r.status == "ok" for r in run.with_staleness() if r.kind != "blank")
