@@ -222,6 +222,10 @@ def _locate(use: t.Use, here: Path, root: Path) -> _Place:
     text = use.path
     if any(ord(char) < 32 or char == "\x7f" for char in text):
         raise UseError("a use path cannot hold control characters")
+    try:
+        text.encode("utf-8")
+    except UnicodeEncodeError as err:  # a lone surrogate, possible only from Python text
+        raise UseError("a use path must be valid Unicode text") from err
     if os.path.isabs(text) or text.startswith("~") or (len(text) > 1 and text[1] == ":"):
         raise UseError(
             f"'{text}' is an absolute path; a use path is relative to the sheet that holds it"

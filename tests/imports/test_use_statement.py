@@ -9,7 +9,7 @@ import sys
 from pathlib import Path
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 from worksheet import load
@@ -380,6 +380,8 @@ LINE_BREAKS = "\n\r\x0b\x0c\x1c\x1d\x1e\x85\u2028\u2029"  # what str.splitlines 
     max_examples=200, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture]
 )
 @given(path=st.text(st.characters(exclude_characters=LINE_BREAKS), max_size=40))
+@example(path="\ud800")  # a lone surrogate: possible in Python text, not in a file
+@example(path="a\x00b")
 def test_issue14_any_use_path_ends_as_a_recorded_line(tmp_path: Path, path: str):
     main_sheet = tmp_path / "main.sheet.md"
     body = "use " + json.dumps(path, ensure_ascii=False) + "\nx = 1 [m]"
