@@ -380,7 +380,7 @@ class Sheet:
         self._document = document
         self._path = path
         self._ureg = ureg
-        self._runner = SheetRunner()
+        self._runner = SheetRunner(path)
         self._open = False
         self._last: SheetResult | None = None
 

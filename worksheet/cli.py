@@ -9,10 +9,11 @@ import sys
 from collections.abc import Sequence
 from pathlib import Path
 
-from worksheet import CAUTION
+from worksheet import CAUTION, __version__
 from worksheet.errors import WorksheetError
+from worksheet.hints import did_you_mean
 
-COMMANDS = ("open", "run", "check", "calc", "constants", "export")
+COMMANDS = ("open", "new", "run", "check", "compare", "calc", "constants", "export")
 
 
 class UsageError(Exception):
@@ -34,6 +35,7 @@ def build_parser() -> argparse.ArgumentParser:
         description="Unit-checked derivation worksheets: run, check and open .sheet.md files.",
         epilog=CAUTION,
     )
+    parser.add_argument("--version", action="version", version=f"worksheet {__version__}")
     sub = parser.add_subparsers(dest="command", parser_class=_Parser)
 
     p_open = sub.add_parser("open", help="open a sheet in the terminal app (new if missing)")
@@ -42,13 +44,35 @@ def build_parser() -> argparse.ArgumentParser:
         "--theme", default=None, help="colour theme: dark, light, contrast or a file"
     )
 
+    p_new = sub.add_parser("new", help="write a short starter sheet (and open nothing)")
+    p_new.add_argument("file")
+    p_new.add_argument("--constants", default=None, help="dataset to pin (default: newest)")
+    p_new.add_argument("--title", default=None, help="title (default: from the file name)")
+
     p_run = sub.add_parser("run", help="re-run a sheet and rewrite its result blocks")
     p_run.add_argument("file")
     p_run.add_argument("-o", "--output", help="write the result here instead of in place")
+    p_run.add_argument("--budget", type=_seconds, default=None, help=_BUDGET_HELP)
 
     p_check = sub.add_parser("check", help="re-run in memory and compare with recorded results")
     p_check.add_argument("files", nargs="+")
     p_check.add_argument("--json", action="store_true", help="print one JSON object per file")
+    p_check.add_argument("--budget", type=_seconds, default=None, help=_BUDGET_HELP)
+
+    p_compare = sub.add_parser(
+        "compare", help="which recorded quantities differ between two sheets or two datasets"
+    )
+    p_compare.add_argument("old", help="the sheet taken as reference")
+    p_compare.add_argument("new", nargs="?", help="the other sheet (default: OLD again)")
+    p_compare.add_argument(
+        "--constants", default=None, help="run NEW (or OLD again) under this dataset"
+    )
+    p_compare.add_argument(
+        "--within", default="1e-9", help="relative tolerance, e.g. 1e-6 or 0.1%% (default 1e-9)"
+    )
+    p_compare.add_argument("--all", action="store_true", help="list agreeing quantities too")
+    p_compare.add_argument("--json", action="store_true")
+    p_compare.add_argument("--budget", type=_seconds, default=None, help=_BUDGET_HELP)
 
     p_calc = sub.add_parser("calc", help="evaluate one expression")
     p_calc.add_argument("expression")
@@ -72,19 +96,51 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+_BUDGET_HELP = "seconds per statement, instead of the sheet's 'budget' (0.1 to 600)"
+
+
+def _seconds(text: str) -> float:
+    try:
+        seconds = float(text.removesuffix("s"))
+    except ValueError as err:
+        raise argparse.ArgumentTypeError(f"'{text}' is not a number of seconds") from err
+    if not 0.1 <= seconds <= 600:
+        raise argparse.ArgumentTypeError("the budget must be from 0.1 to 600 seconds")
+    return seconds
+
+
+def _implicit_open(first: str) -> bool:
+    """``worksheet FILE`` opens FILE only when it exists; a missing name is never a sheet."""
+    return first not in COMMANDS and not first.startswith("-") and Path(first).is_file()
+
+
+def _unknown_first_word(first: str) -> UsageError:
+    hint = did_you_mean(first, COMMANDS)
+    if hint:
+        return UsageError(f"'{first}' is not a command{hint}")
+    return UsageError(
+        f"'{first}' is neither a command nor an existing file; start a new sheet with "
+        f"'worksheet new {first}' or 'worksheet open {first}' (commands: {', '.join(COMMANDS)})"
+    )
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     args_list = list(sys.argv[1:] if argv is None else argv)
-    if args_list and args_list[0] not in COMMANDS and not args_list[0].startswith("-"):
-        args_list = ["open", *args_list]
     try:
+        if args_list and _implicit_open(args_list[0]):
+            args_list = ["open", *args_list]
+        elif args_list and args_list[0] not in COMMANDS and not args_list[0].startswith("-"):
+            raise _unknown_first_word(args_list[0])
         args = build_parser().parse_args(args_list)
         if args.command is None:
             build_parser().print_help()
             return 2
         handler = {
             "open": _open,
+            "new": _new,
             "run": _run,
             "check": _check,
+            "compare": _compare,
             "calc": _calc,
             "constants": _constants,
             "export": _export,
@@ -120,11 +176,16 @@ def _read(path_text: str):
         raise UsageError(f"{path_text}: cannot read ({err.strerror})") from err
 
 
-def _run_document(path_text: str, lines_as_written: bool = False):
+def _run_document(
+    path_text: str,
+    budget: float | None = None,
+    dataset: str | None = None,
+    lines_as_written: bool = False,
+):
     from worksheet.runner import SheetRunner
 
     doc = _read(path_text)
-    runner = SheetRunner()
+    runner = SheetRunner(path_text, budget=budget, dataset=dataset)
     try:
         return runner.run(doc, lines_as_written)
     except WorksheetError as err:
@@ -148,7 +209,7 @@ def _summary_lines(path_text: str, results) -> list[str]:
 def _run(args: argparse.Namespace) -> int:
     from worksheet.document import atomic_write_text
 
-    run = _run_document(args.file, lines_as_written=True)
+    run = _run_document(args.file, args.budget, lines_as_written=True)
     target = args.output or args.file
     try:
         atomic_write_text(target, run.text)
@@ -168,7 +229,7 @@ def _check(args: argparse.Namespace) -> int:
     worst = 0
     for path_text in args.files:
         try:
-            run = _run_document(path_text)
+            run = _run_document(path_text, args.budget)
         except UsageError as err:
             if args.json:
                 print(
@@ -203,14 +264,11 @@ def _check(args: argparse.Namespace) -> int:
 
 
 def _calc(args: argparse.Namespace) -> int:
-    from worksheet.constants import DATASET_NAMES
     from worksheet.engine import calculate, make_context
     from worksheet.engine.budget import DEFAULT_SECONDS
 
-    if args.constants is not None and args.constants not in DATASET_NAMES:
-        raise UsageError(
-            f"unknown dataset '{args.constants}'; use one of " + ", ".join(DATASET_NAMES)
-        )
+    if args.constants is not None:
+        _known_dataset(args.constants)
     if not 1 <= args.digits <= 15:
         raise UsageError("--digits must be from 1 to 15")
     context = make_context(args.constants, args.digits, args.budget or DEFAULT_SECONDS)
@@ -233,16 +291,13 @@ def _calc(args: argparse.Namespace) -> int:
 
 def _constants(args: argparse.Namespace) -> int:
     from worksheet.constants import (
-        DATASET_NAMES,
         DEFAULT_DATASET,
         constant_record,
         format_constants_table,
         load_dataset,
     )
 
-    name = args.constants or DEFAULT_DATASET
-    if name not in DATASET_NAMES:
-        raise UsageError(f"unknown dataset '{name}'; use one of " + ", ".join(DATASET_NAMES))
+    name = _known_dataset(args.constants or DEFAULT_DATASET)
     dataset = load_dataset(name)
     found = dataset.find(args.word)
     if args.json:
@@ -307,3 +362,85 @@ def _export_outcome(file: str, problems: str | None) -> int:
         return 0
     print(f"{file}: {problems} The export says so.", file=sys.stderr)
     return 1
+
+
+def _known_dataset(name: str) -> str:
+    from worksheet.constants import DATASET_NAMES
+
+    if name not in DATASET_NAMES:
+        hint = did_you_mean(name, DATASET_NAMES)
+        raise UsageError(
+            f"unknown dataset '{name}'{hint or ''}; use one of " + ", ".join(DATASET_NAMES)
+        )
+    return name
+
+
+def _new(args: argparse.Namespace) -> int:
+    from worksheet.constants import DEFAULT_DATASET
+    from worksheet.starter import starter_sheet_text
+
+    path = Path(args.file)
+    if path.exists():
+        raise UsageError(f"{args.file}: already exists; 'worksheet open {args.file}' edits it")
+    if not path.name.endswith(".md"):
+        raise UsageError(f"{args.file}: a sheet file ends in .sheet.md (or .md)")
+    dataset = _known_dataset(args.constants or DEFAULT_DATASET)
+    title = args.title or path.name.removesuffix(".md").removesuffix(".sheet")
+    run = _run_text(starter_sheet_text(title, dataset))
+    try:
+        with path.open("x", encoding="utf-8", newline="") as handle:  # never overwrite
+            handle.write(run.text)
+    except FileExistsError as err:
+        raise UsageError(f"{args.file}: already exists") from err
+    except OSError as err:
+        raise UsageError(f"{args.file}: cannot write ({err.strerror})") from err
+    print(f"wrote {args.file}; open it with 'worksheet open {args.file}'")
+    return 0
+
+
+def _run_text(text: str):
+    from worksheet.runner import run_text
+
+    return run_text(text)
+
+
+def _compare(args: argparse.Namespace) -> int:
+    from fractions import Fraction
+
+    from worksheet.compare import compare_results, format_table
+
+    text = args.within.strip()
+    try:
+        tolerance = Fraction(text[:-1]) / 100 if text.endswith("%") else Fraction(text)
+    except (ValueError, ZeroDivisionError) as err:
+        raise UsageError(f"--within {args.within}: not a number or a percentage") from err
+    if tolerance < 0:
+        raise UsageError("--within must not be negative")
+    if args.constants is not None:
+        _known_dataset(args.constants)
+    if args.new is None and args.constants is None:
+        raise UsageError("compare needs a second sheet or --constants DATASET")
+    old = _run_document(args.old, args.budget)
+    new = _run_document(args.new or args.old, args.budget, args.constants)
+    old_name = f"{args.old} ({old.settings.dataset})"
+    new_name = f"{args.new or args.old} ({new.settings.dataset})"
+    rows = compare_results(old.results, new.results, tolerance, old.settings.digits)
+    differing = [row for row in rows if row.differs]
+    if args.json:
+        print(
+            json.dumps(
+                {
+                    "old": old_name,
+                    "new": new_name,
+                    "tolerance": float(tolerance),
+                    "differ": len(differing),
+                    "quantities": [row.to_json() for row in rows],
+                },
+                ensure_ascii=False,
+            )
+        )
+    else:
+        print(f"old: {old_name}\nnew: {new_name}")
+        sys.stdout.write(format_table(rows, args.all))
+        print(f"{len(differing)} of {len(rows)} quantities differ beyond a relative {args.within}")
+    return 1 if differing else 0

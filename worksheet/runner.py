@@ -7,6 +7,7 @@ command line, the app and the Python API all go through it.
 from __future__ import annotations
 
 import dataclasses
+import os
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 
@@ -171,11 +172,12 @@ class SheetRun:
             item = stale_lines.get(id(result))
             if item is not None and result.status == "ok":
                 recorded = item.recorded if item.recorded is not None else "(nothing recorded)"
-                result = dataclasses.replace(
-                    result,
-                    status="stale",
-                    message=f"recorded: {recorded}; recomputed: {item.recomputed}",
-                )
+                message = f"recorded: {recorded}; recomputed: {item.recomputed}"
+                if result.kind == "use":
+                    from worksheet.imports import stale_use_message
+
+                    message = stale_use_message(item.recorded, result)
+                result = dataclasses.replace(result, status="stale", message=message)
             marked.append(result)
         return tuple(marked)
 
@@ -186,11 +188,36 @@ second run keeps every block's size (one record per statement), so it is final."
 
 
 class SheetRunner:
-    """Runs documents, keeping one evaluator per settings so re-runs are incremental."""
+    """Runs documents, keeping one evaluator per settings so re-runs are incremental.
 
-    def __init__(self) -> None:
+    ``sheet_path`` is where the sheet lives (its ``use`` paths are relative to it);
+    ``budget`` and ``dataset`` override the front matter (``--budget``, ``--constants``).
+    """
+
+    def __init__(
+        self,
+        sheet_path: str | os.PathLike[str] | None = None,
+        *,
+        budget: float | None = None,
+        dataset: str | None = None,
+    ) -> None:
+        from worksheet.imports import SheetImports
+
+        self.sheet_path = sheet_path
+        self.budget = budget
+        self.dataset = dataset
+        self._imports = SheetImports()
         self._contexts: dict[tuple, Context] = {}
         self._evaluators: dict[tuple, SheetEvaluator] = {}
+
+    def settings(self, doc: SheetDocument) -> SheetSettings:
+        """The front matter's settings with this runner's overrides applied."""
+        settings = read_settings(doc)
+        if self.budget is not None:
+            settings = dataclasses.replace(settings, seconds=self.budget)
+        if self.dataset is not None:
+            settings = dataclasses.replace(settings, dataset=self.dataset)
+        return settings
 
     def evaluator(self, settings: SheetSettings) -> SheetEvaluator:
         key = (
@@ -214,14 +241,25 @@ class SheetRunner:
             self._evaluators[key] = SheetEvaluator(context)
         return self._evaluators[key]
 
-    def run(self, doc: SheetDocument, lines_as_written: bool = False) -> SheetRun:
+    def run(
+        self,
+        doc: SheetDocument,
+        lines_as_written: bool = False,
+        path: str | os.PathLike[str] | None = None,
+    ) -> SheetRun:
         """Run ``doc``. Messages cite the lines of ``doc`` itself (what ``check``, exports
         and the app show), or with ``lines_as_written`` those of the file this run writes
-        (what ``worksheet run`` and saving use)."""
-        settings = read_settings(doc)
+        (what ``worksheet run`` and saving use). ``use`` paths resolve from ``path`` (or the
+        runner's ``sheet_path``)."""
+        settings = self.settings(doc)
         evaluator = self.evaluator(settings)
         statements = document_statements(doc)
+        pinned = read_settings(doc).dataset
         for _ in range(MAX_RENUMBERING_RUNS):
+            scope = self._imports.scope_for(
+                statements, path or self.sheet_path, evaluator.ctx, pinned
+            )
+            evaluator.set_imports(scope)
             results = evaluator.run(statements)
             per_cell, lines_of = _recorded_lines(doc, statements, results)
             new_doc = with_results(doc, per_cell)

@@ -82,7 +82,7 @@ class WorksheetApp(App[int]):
             self.CSS = stylesheet
         self.sheet_path = Path(path)
         self.requested_theme = theme
-        self.service = LazyRunService()
+        self.service = LazyRunService(self.sheet_path)
         self.session: SheetSession | None = None
         self.outcome: RunOutcome | None = None
         self.theme_names: list[str] = []

@@ -75,8 +75,9 @@ class _Engine:
 class RunService:
     """Owns the runners (and so their worker processes) for the app's lifetime."""
 
-    def __init__(self) -> None:
-        self._engine = _Engine()
+    def __init__(self, sheet_path: Any = None) -> None:
+        self._sheet_path = sheet_path  # where the sheet's 'use' paths start from
+        self._engine = _Engine(SheetRunner(sheet_path))
         self._guard = threading.Lock()  # protects the choice of engine
         self._closed = False
 
@@ -135,7 +136,7 @@ class RunService:
             started, doc = engine.started, engine.doc
             if started is None or doc is None or time.monotonic() - started < after:
                 return False
-            self._engine = _Engine()
+            self._engine = _Engine(SheetRunner(self._sheet_path))
             engine.give_up()
         return True
 

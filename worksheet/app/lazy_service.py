@@ -17,7 +17,8 @@ if TYPE_CHECKING:
 class LazyRunService:
     """Makes the ``RunService`` once, from any thread; none is made after ``close``."""
 
-    def __init__(self) -> None:
+    def __init__(self, sheet_path: object = None) -> None:
+        self._sheet_path = sheet_path  # where the sheet's 'use' paths start from
         self._service: RunService | None = None
         self._lock = threading.Lock()
         self._closed = False
@@ -35,7 +36,7 @@ class LazyRunService:
             if self._service is None:
                 from worksheet.app.evaluation import RunService
 
-                self._service = RunService()
+                self._service = RunService(self._sheet_path)
             return self._service
 
     def close(self) -> None:

@@ -32,6 +32,7 @@ class StatementResult:
     precision: str | None = None  # set when the precision guard found a loss: why
     plot: Any = None  # PlotData for 'plot' statements
     sampled: Any = None  # SampledSummary / VarianceBudget for quantities with ranged inputs
+    imported: Any = None  # 'use' statements: {"file", "library", "sha256", "names"}
     form: Any = field(default=None, compare=False, repr=False)
     """The sympy expression behind ``symbolic``, printed only when someone asks."""
     detail: Any = field(default=None, compare=False, repr=False)
@@ -67,6 +68,8 @@ class StatementResult:
             data["sampled"] = data["sampled"].to_json()
         if data["uncertainty"] is None:
             data.pop("uncertainty")
+        if data["imported"] is None:
+            data.pop("imported")
         precision = data.pop("precision")
         if precision is not None:
             data["precision_loss"] = precision

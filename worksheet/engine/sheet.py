@@ -12,6 +12,7 @@ import sympy
 from worksheet.engine.bindings import Binding
 from worksheet.engine.budget import statement_timer
 from worksheet.engine.context import Context
+from worksheet.engine.import_scope import ImportScope
 from worksheet.engine.results import StatementResult
 from worksheet.engine.statements import KINDS, RESERVED_NAMES, StatementEvaluator
 from worksheet.errors import NameResolutionError, WorksheetError
@@ -61,8 +62,12 @@ def _serial(binding: Binding | None) -> int:
 
 def _paren_balance(line: str) -> int:
     balance = 0
-    in_unit = False
+    in_unit = in_quote = False
     for char in line:
+        if char == '"':  # a quoted path ('use "notes (old).sheet.md"') holds no parentheses
+            in_quote = not in_quote
+        if in_quote or char == '"':
+            continue
         if char == "#" and not in_unit:
             break
         if char == "[":
@@ -113,6 +118,15 @@ class SheetEvaluator:
         self._slots: list[_Slot] = []
         self._parse_cache: dict[tuple[int, str], tuple] = {}
         self._state: _RunState | None = None
+        self._imports = ImportScope()
+
+    def set_imports(self, scope: ImportScope) -> None:
+        """Names other sheets lend (``use``); new file contents void every cached result."""
+        if scope.token != self._imports.token or scope.names.keys() != self._imports.names.keys():
+            self._state = None
+            for slot in self._slots:
+                slot.key = slot.result = slot.binding = None
+        self._imports = scope
 
     def _parse(self, source: SourceStatement) -> tuple:
         key = (source.line, source.text)
@@ -180,15 +194,18 @@ class SheetEvaluator:
                 first_definer[slot.defines] = index
 
         visible: dict[str, Binding] = {}
-        failed: dict[str, int] = {}  # name -> line of the failed definition
-        values: dict[sympy.Symbol, Binding] = {}
+        failed: dict[str, int] = dict(self._imports.failed)  # name -> line that failed
+        values: dict[sympy.Symbol, Binding] = {
+            lent.binding.symbol: lent.binding for lent in self._imports.names.values()
+        }
         constants = self.ctx.constants
+        imports = self._imports
 
         def lookup(name: str) -> Binding | None:
             binding = visible.get(name)
             if binding is not None:
                 return binding
-            return constants.get(name)
+            return imports.binding(name) or constants.get(name)
 
         evaluator = StatementEvaluator(self.ctx, lookup, values)
         for index, slot in enumerate(slots):
@@ -299,6 +316,12 @@ class SheetEvaluator:
         if slot.key == key and slot.result is not None:
             return slot.result, slot.binding
         slot.key = key
+        if isinstance(parsed, t.Use):
+            return self._imports.results[line], None
+        for name in (slot.defines, *slot.uses):
+            refusal = name and self._imports.refusal(name, line, name == slot.defines)
+            if refusal:
+                return evaluator.error_result(parsed, NameResolutionError(refusal, line)), None
         # Names: redefinition, use before definition, dependence on a failed line.
         if slot.defines is not None and first_definer.get(slot.defines, index) != index:
             first_line = slots[first_definer[slot.defines]].source.line

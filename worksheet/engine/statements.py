@@ -76,6 +76,7 @@ KINDS = {
     t.Estimate: "estimate",
     t.Variance: "variance",
     t.Histogram: "histogram",
+    t.Use: "use",
     t.Blank: "blank",
 }
 DEFAULT_NUMERIC_TOLERANCE = Fraction(1, 10**9)
@@ -171,7 +172,12 @@ class StatementEvaluator:
     # --- pieces ---
     def translator(self) -> Translator:
         return Translator(
-            self.lookup, self.ctx.registry, self.ctx.unit_values, self.ctx.worker, self.ctx.seconds
+            self.lookup,
+            self.ctx.registry,
+            self.ctx.unit_values,
+            self.ctx.worker,
+            self.ctx.seconds,
+            sheet_names=lambda: (binding.name for binding in self.values.values()),
         )
 
     def figures(self, expr: sympy.Expr) -> Figures:

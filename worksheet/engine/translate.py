@@ -8,7 +8,7 @@ be exact numbers. Names resolve only through the sheet's bindings and the pinned
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field
 from fractions import Fraction
 
@@ -126,6 +126,7 @@ class Translator:
     used: list[str] = field(default_factory=list)
     used_verb: bool = False
     numeric_notes: list[str] = field(default_factory=list)  # verbs that fell back to numbers
+    sheet_names: Callable[[], Iterable[str]] | None = None  # for "did you mean" only
 
     # --- entry point ---
     def translate(
@@ -181,7 +182,10 @@ class Translator:
             self.registry.named(node.id)
             hint = f"; for the unit, write it in brackets: [{node.id}]"
         except (ParseError, DimensionError):
-            hint = ""
+            from worksheet.hints import did_you_mean
+
+            known = list(self.sheet_names()) if self.sheet_names else []
+            hint = did_you_mean(node.id, [*self.registry.dataset.constants, "pi", *known])
         return NameResolutionError(f"unknown name '{node.id}'{hint}", node.line, node.column)
 
     def _unit(self, node: t.Unit) -> Typed:
@@ -294,8 +298,12 @@ class Translator:
             raise NameResolutionError(f"'{name}' is not a relation", node.line, node.column)
         binding = self.lookup(name)
         if binding is None:
+            from worksheet.hints import did_you_mean
+
+            hint = did_you_mean(name, BUILTIN_CALLS)
             raise NameResolutionError(
-                f"unknown function '{name}'; the functions are " + ", ".join(sorted(BUILTIN_CALLS)),
+                f"unknown function '{name}'"
+                + (hint or "; the functions are " + ", ".join(sorted(BUILTIN_CALLS))),
                 node.line,
                 node.column,
             )

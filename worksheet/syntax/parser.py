@@ -8,6 +8,7 @@ from worksheet.errors import ParseError
 from worksheet.syntax import tree as t
 from worksheet.syntax.tokens import Kind, Token, tokenize
 from worksheet.syntax.units import parse_unit
+from worksheet.syntax.use import looks_like_use, parse_use
 
 MAX_NESTING = 60
 """Parentheses, calls and unary signs nested deeper than this are refused."""
@@ -326,6 +327,8 @@ def parse_statement(text: str, line: int = 1, column: int = 1) -> t.AnyStatement
     >>> parse_statement("r_s = 2*G*M/c^2").name
     'r_s'
     """
+    if looks_like_use(text):  # its quoted path is not an expression token
+        return parse_use(text, line, column)
     tokens = tokenize(text, line, column)
     source = _source_text(text)
     first = tokens[0]

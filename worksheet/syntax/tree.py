@@ -209,6 +209,16 @@ class Histogram(Statement):
 
 
 @dataclass(frozen=True)
+class Use(Statement):
+    """``use "other.sheet.md"`` or ``use A, B from library "blackhole"``: names of another
+    sheet brought into this one (``names`` empty: all of them)."""
+
+    names: tuple[str, ...]
+    path: str
+    library: bool
+
+
+@dataclass(frozen=True)
 class Blank(Statement):
     """A comment-only or empty line: records nothing."""
 
@@ -225,6 +235,7 @@ AnyStatement = (
     | Estimate
     | Variance
     | Histogram
+    | Use
     | Blank
 )
 

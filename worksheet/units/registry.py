@@ -104,7 +104,10 @@ class UnitRegistry:
         try:
             unit = ureg.Unit(name)
         except (pint.errors.UndefinedUnitError, AttributeError, ValueError, TypeError) as err:
-            raise ParseError(f"unknown unit '{name}'") from err
+            from worksheet.hints import did_you_mean
+
+            hint = did_you_mean(name, [*self.dataset.units, *_pint_unit_names(ureg)])
+            raise ParseError(f"unknown unit '{name}'{hint}") from err
         dims = dict(unit.dimensionality)
         extra = set(dims) - set(PINT_BASES)
         if extra:
@@ -184,3 +187,14 @@ class UnitRegistry:
         if inner.startswith("[") and inner.endswith("]"):
             inner = inner[1:-1]
         return self.resolve(parse_unit(inner))
+
+
+def _pint_unit_names(ureg: Any) -> list[str]:
+    """pint's unit names and symbols, for a 'did you mean' after an unknown unit."""
+    names = [p + u for p in "kMGTPmunpf" for u in ("eV", "m", "g", "s", "Hz", "W", "J", "pc")]
+    for name, definition in getattr(ureg, "_units", {}).items():
+        names.append(name)
+        symbol = getattr(definition, "symbol", None)
+        if symbol:
+            names.append(symbol)
+    return names
