@@ -1,4 +1,9 @@
-"""The quantity ledger: every named quantity with value, unit, dimension and origin."""
+"""The quantity ledger: every named quantity with value, unit, dimension and origin.
+
+Each quantity is a wrapped entry of the list, never a cell cut to a column's width: the
+value line folds at spaces (a number is never split), and the dimension and origin are on
+the line beneath, so everything is reachable at any width by moving up and down.
+"""
 
 from __future__ import annotations
 
@@ -7,23 +12,23 @@ from collections.abc import Sequence
 from rich.text import Text
 from textual import on
 from textual.message import Message
-from textual.widgets import DataTable
-from textual.widgets.data_table import ColumnKey
+from textual.widgets import OptionList
+from textual.widgets.option_list import Option
 
 from worksheet.app.quantity_row import QuantityRow
 
-COLUMNS = ("name", "value", "dimension", "origin")
+
+def entry_text(row: QuantityRow) -> Text:
+    """``name = value +- u unit`` and, beneath, ``dimension; origin`` (plain, never markup)."""
+    text = Text(f"{row.name} = {row.shown_value}")
+    text.append(f"\n  {row.dimension}; {row.origin}", style="dim")
+    return text
 
 
-def _cells(row: QuantityRow) -> tuple[Text, Text, Text, Text]:
-    # Text cells: a plain str would be read as markup and lose "[...]".
-    return Text(row.name), Text(row.shown_value), Text(row.dimension), Text(row.origin)
+class QuantityLedger(OptionList):
+    """An entry per quantity; moving the highlight posts ``QuantityLedger.Chosen``.
 
-
-class QuantityLedger(DataTable[Text]):
-    """A row per quantity; moving the cursor posts ``QuantityLedger.Chosen``.
-
-    Keys: the arrow keys move between rows; enter chooses a row (as DataTable does).
+    Keys: the arrow keys move between entries; enter chooses one.
     """
 
     class Chosen(Message):
@@ -34,46 +39,56 @@ class QuantityLedger(DataTable[Text]):
             self.row = row
 
     def __init__(self, **kwargs: object) -> None:
-        super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)  # type: ignore[arg-type]
+        super().__init__(**kwargs)  # type: ignore[arg-type]
         self._rows: dict[str, QuantityRow] = {}
-        self._column_keys: list[ColumnKey] = []
-
-    def on_mount(self) -> None:
-        self._column_keys = self.add_columns(*COLUMNS)
 
     def show(self, rows: Sequence[QuantityRow]) -> None:
-        """Show ``rows``: only changed cells are redrawn when the names stay the same."""
+        """Show ``rows``: only changed entries are redrawn when the names stay the same."""
         fresh = {row.name: row for row in rows}
         if list(fresh) == list(self._rows):
             for name, row in fresh.items():
-                old = self._rows[name]
-                if row != old:
-                    for column, (new_cell, old_cell) in enumerate(
-                            zip(_cells(row), _cells(old), strict=True)):
-                        if new_cell != old_cell:
-                            self.update_cell(name, self._column_keys[column], new_cell,
-                                             update_width=True)
+                if row != self._rows[name]:
+                    self.replace_option_prompt(name, entry_text(row))
             self._rows = fresh
             return
         keep = self.chosen_name()
-        self.clear()
         self._rows = fresh
-        for row in rows:
-            self.add_row(*_cells(row), key=row.name)
-        if keep in self._rows:
-            self.move_cursor(row=list(self._rows).index(keep))
+        self.set_options([Option(entry_text(row), id=row.name) for row in rows])
+        if keep in fresh:
+            self.highlighted = list(fresh).index(keep)
+        elif fresh:
+            self.highlighted = 0
+
+    @property
+    def rows(self) -> tuple[QuantityRow, ...]:
+        return tuple(self._rows.values())
 
     def chosen_name(self) -> str | None:
-        if not self._rows or self.cursor_row < 0 or self.cursor_row >= len(self._rows):
+        index = self.highlighted
+        if index is None or not 0 <= index < len(self._rows):
             return None
-        return list(self._rows)[self.cursor_row]
+        return list(self._rows)[index]
 
     def row_named(self, name: str) -> QuantityRow | None:
         return self._rows.get(name)
 
-    @on(DataTable.RowHighlighted)
-    def _highlighted(self, event: DataTable.RowHighlighted) -> None:
+    def choose(self, name: str) -> None:
+        """Highlight the quantity ``name`` (from the sheet's cursor); unknown names: nothing."""
+        if name in self._rows:
+            index = list(self._rows).index(name)
+            if self.highlighted != index:
+                self.highlighted = index
+
+    @on(OptionList.OptionHighlighted)
+    def _highlighted(self, event: OptionList.OptionHighlighted) -> None:
         event.stop()
-        key = event.row_key.value if event.row_key is not None else None
-        if key in self._rows:
-            self.post_message(self.Chosen(self._rows[key]))
+        row = self._rows.get(event.option.id or "")
+        if row is not None:
+            self.post_message(self.Chosen(row))
+
+    @on(OptionList.OptionSelected)
+    def _selected(self, event: OptionList.OptionSelected) -> None:
+        event.stop()
+        row = self._rows.get(event.option.id or "")
+        if row is not None:
+            self.post_message(self.Chosen(row))
