@@ -47,7 +47,8 @@ def test_screen_at_80x24(basic_sheet: Path, ui) -> None:
     assert any(line.strip().startswith(f"ok      T_H = {temperature} ") for line in lines)
     assert any(line.strip() == "ok      check T_H ~ 1e11 [K]: holds" for line in lines)
     assert "STALE" not in first
-    assert lines[22].startswith(" 5 results: 5 ok  |  the file records 5 results differently"), lines[22]
+    status = " 5 results: 5 ok  |  the file records 5 results differently"
+    assert lines[22].startswith(status), lines[22]
     assert "f1 Help" in lines[23] and "^s Save" in lines[23] and "f2 Constant" in lines[23]
 
 

@@ -15,11 +15,11 @@ from typing import TYPE_CHECKING
 from rich.text import Text
 from textual import on, work
 from textual.app import App, ComposeResult, SystemCommand
-from textual.events import Resize
 from textual.containers import Horizontal, Vertical
+from textual.events import Resize
 from textual.screen import ModalScreen, Screen
-from textual.timer import Timer
 from textual.theme import BUILTIN_THEMES
+from textual.timer import Timer
 from textual.widget import Widget
 from textual.widgets import Footer, Static, TextArea
 from textual.worker import get_current_worker
@@ -45,8 +45,8 @@ from worksheet.app.widgets.calc_editor import CalcEditor
 from worksheet.app.widgets.ledger import QuantityLedger
 from worksheet.app.widgets.links import QuantityLinks
 from worksheet.app.widgets.note_cell import NoteCellView
-from worksheet.app.widgets.sheet_view import SheetView
 from worksheet.app.widgets.result_lines import result_line
+from worksheet.app.widgets.sheet_view import SheetView
 from worksheet.app.widgets.status_line import StatusLine
 from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET, load_dataset
 from worksheet.document import CalcCell, atomic_write_text, parse_document, render_document
@@ -467,7 +467,8 @@ class WorksheetApp(App[int]):
             widget.focus(scroll_visible=False)
             sheet = self.sheet
             self.call_after_refresh(
-                lambda: sheet.scroll_to(y=scrolled, animate=False, immediate=True))
+                lambda: sheet.scroll_to(y=scrolled, animate=False, immediate=True)
+            )
             return
         index = self._current_block()
         self.sheet.focus_block(index if index is not None else 0)

@@ -27,17 +27,43 @@ THEMES_PACKAGE = "worksheet.themes"
 STYLESHEET_NAME = "worksheet.tcss"
 BUILT_IN = ("dark", "light", "contrast")
 
-COLOUR_KEYS = ("primary", "secondary", "warning", "error", "success", "accent", "foreground",
-               "background", "surface", "panel", "boost")
-STATE_DEFAULTS = {"result-ok": "success", "result-failed": "error", "result-error": "error",
-                  "result-stale": "warning"}
+COLOUR_KEYS = (
+    "primary",
+    "secondary",
+    "warning",
+    "error",
+    "success",
+    "accent",
+    "foreground",
+    "background",
+    "surface",
+    "panel",
+    "boost",
+)
+STATE_DEFAULTS = {
+    "result-ok": "success",
+    "result-failed": "error",
+    "result-error": "error",
+    "result-stale": "warning",
+}
 FALLBACK = {"success": "#4caf50", "error": "#e53935", "warning": "#ffb300"}
 # Grammar kinds of worksheet/app/highlight.py and the theme colour each defaults to.
-SYNTAX_DEFAULTS = {"comment": "secondary", "unit": "success", "number": "accent",
-                   "verb": "primary", "keyword": "primary", "function": "primary",
-                   "name": "foreground"}
-SYNTAX_FALLBACK = {"secondary": "#8e7cc3", "success": "#4caf50", "accent": "#e0a458",
-                   "primary": "#5b9bd5", "foreground": "#dcdcdc"}
+SYNTAX_DEFAULTS = {
+    "comment": "secondary",
+    "unit": "success",
+    "number": "accent",
+    "verb": "primary",
+    "keyword": "primary",
+    "function": "primary",
+    "name": "foreground",
+}
+SYNTAX_FALLBACK = {
+    "secondary": "#8e7cc3",
+    "success": "#4caf50",
+    "accent": "#e0a458",
+    "primary": "#5b9bd5",
+    "foreground": "#dcdcdc",
+}
 
 
 @dataclass(frozen=True)
@@ -92,8 +118,11 @@ def parse_theme(text: str, label: str) -> Theme:
         raise WorksheetError(f"theme file {label}: unknown syntax kinds {', '.join(unknown)}")
     for kind, source in SYNTAX_DEFAULTS.items():
         colour = syntax.get(kind)
-        extra[f"syntax-{kind}"] = (_colour(colour, f"{label}: syntax.{kind}") if colour
-                                   is not None else chosen.get(source, SYNTAX_FALLBACK[source]))
+        extra[f"syntax-{kind}"] = (
+            _colour(colour, f"{label}: syntax.{kind}")
+            if colour is not None
+            else chosen.get(source, SYNTAX_FALLBACK[source])
+        )
     dark = data.get("dark", True)
     if not isinstance(dark, bool):
         raise WorksheetError(f"theme file {label}: 'dark' must be true or false")
@@ -108,8 +137,7 @@ def themes_folder() -> Traversable:
 def read_stylesheet(folder: Traversable | None = None) -> str | None:
     """The app's stylesheet text, or None when it is missing or unreadable."""
     try:
-        return (folder or themes_folder()).joinpath(STYLESHEET_NAME).read_text(
-            encoding="utf-8")
+        return (folder or themes_folder()).joinpath(STYLESHEET_NAME).read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError, ModuleNotFoundError):
         return None
 
@@ -129,8 +157,11 @@ def load_themes(folder: Path | Traversable | None = None) -> ThemeLoad:
     problems: list[str] = []
     try:
         where = folder if folder is not None else themes_folder()
-        paths = sorted((p for p in where.iterdir() if p.name.endswith(".toml")),
-                       key=lambda p: p.name) if where.is_dir() else []
+        paths = (
+            sorted((p for p in where.iterdir() if p.name.endswith(".toml")), key=lambda p: p.name)
+            if where.is_dir()
+            else []
+        )
     except (OSError, ModuleNotFoundError):
         where, paths = None, []
     if not paths:

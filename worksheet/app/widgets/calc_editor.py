@@ -49,8 +49,7 @@ class CalcEditor(TextArea):
         """Colour the grammar with the app theme's syntax colours (readable on its surface)."""
         name = syntax_theme_name(self.app.theme)
         if name not in self._themes:
-            self.register_theme(syntax_theme(self.app.theme,
-                                             self.app.current_theme.variables))
+            self.register_theme(syntax_theme(self.app.theme, self.app.current_theme.variables))
         self.theme = name
 
     def _build_highlight_map(self) -> None:

@@ -114,8 +114,11 @@ class ResultLines(Static):
 
     def show(self, results: Iterable[StatementResult]) -> None:
         """Show the results (sheet text is never read as markup, so [kg] stays visible)."""
-        self.show_lines(tuple(result_line(result) for result in results
-                              if result.kind != "blank" or result.record))
+        self.show_lines(
+            tuple(
+                result_line(result) for result in results if result.kind != "blank" or result.record
+            )
+        )
 
     def show_lines(self, lines: tuple[Line, ...]) -> None:
         """Show lines made by ``result_line`` (a placeholder when there are none)."""
@@ -143,7 +146,10 @@ class ResultLines(Static):
         # height can change (another number of lines, or a changed line too long to fit).
         width = self.content_size.width
         changed = [text for _kind, text in set(lines) ^ set(self._shown)]
-        layout = (width <= 0 or len(lines) != len(self._shown)
-                  or any("\n" in text or cell_len(text) >= width for text in changed))
+        layout = (
+            width <= 0
+            or len(lines) != len(self._shown)
+            or any("\n" in text or cell_len(text) >= width for text in changed)
+        )
         self.update(Content.assemble(*parts), layout=layout)
         self._shown = lines
