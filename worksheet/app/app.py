@@ -45,7 +45,7 @@ from worksheet.app.widgets.calc_editor import CalcEditor
 from worksheet.app.widgets.ledger import QuantityLedger
 from worksheet.app.widgets.links import QuantityLinks
 from worksheet.app.widgets.note_cell import NoteCellView
-from worksheet.app.widgets.result_lines import result_line
+from worksheet.app.widgets.result_lines import STATUS_WORDS, result_text
 from worksheet.app.widgets.sheet_view import SheetView
 from worksheet.app.widgets.status_line import StatusLine
 from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET, load_dataset
@@ -69,7 +69,8 @@ def summary(results: Iterable[StatementResult]) -> str:
     total = sum(counts.values())
     order = ("ok", "failed", "error", "skipped", "stale")
     parts = [f"{counts[s]} {s if s == 'ok' else s.upper()}" for s in order if counts[s]]
-    return f"{total} results: " + ", ".join(parts) if parts else "no results"
+    noun = "result" if total == 1 else "results"
+    return f"{total} {noun}: " + ", ".join(parts) if parts else "no results"
 
 
 class WorksheetApp(App[int]):
@@ -374,8 +375,8 @@ class WorksheetApp(App[int]):
         if found is None or found.kind == "blank":
             text = f"line {line}: nothing to record"
         else:
-            _kind, shown = result_line(found)
-            text = f"line {found.line}: {shown}"
+            word = STATUS_WORDS.get(found.status, found.status.upper())
+            text = f"line {found.line}: {word}  {result_text(found)}"
             if found.name is not None:
                 self.query_one(QuantityLedger).choose(found.name)
         strip.update(Text(text))

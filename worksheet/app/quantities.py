@@ -51,7 +51,9 @@ def _recorded(result: StatementResult | None, binding: Binding, digits: int) -> 
     if binding.value is not None:
         return format_number(binding.value, digits), binding.dimension.si_unit()
     if result is not None and result.symbolic:
-        return result.symbolic, result.unit or ""
+        # A form in symbols: its dimension is on the line beneath; a unit written after
+        # it would read as a factor.
+        return result.symbolic, ""
     return "(no value)", binding.dimension.si_unit()
 
 
