@@ -69,7 +69,7 @@ def panel_entries(app: WorksheetApp) -> dict[str, str]:
     cut by the panel's edge is left out.
     """
     ledger = app.query_one(QuantityLedger)
-    region = ledger.content_region
+    region = ledger.scrollable_content_region  # without the scrollbar
     lines = screen_text(app).splitlines()
     width = ledger.name_width
     entries: dict[str, list[str]] = {}
@@ -94,11 +94,12 @@ def panel_entries(app: WorksheetApp) -> dict[str, str]:
 
 
 async def all_panel_entries(pilot: Pilot, app: WorksheetApp) -> dict[str, str]:
-    """Every entry of the quantities panel, each read while it is highlighted (so in view)."""
+    """Every entry of the quantities panel, each read while it is highlighted and at the top."""
     ledger = app.query_one(QuantityLedger)
     found: dict[str, str] = {}
     for index, row in enumerate(ledger.rows):
         ledger.highlighted = index
+        ledger.scroll_to_highlight(top=True)
         await pilot.pause(0.05)
         seen = panel_entries(app)
         assert row.name in seen, f"{row.name} not readable on the screen"

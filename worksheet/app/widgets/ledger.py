@@ -19,7 +19,6 @@ from textual.widgets.option_list import Option
 
 from worksheet.app.quantity_row import QuantityRow
 
-
 # Names up to this long get a column of their own; longer ones fold within it.
 MAX_NAME_COLUMN = 14
 
