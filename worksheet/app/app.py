@@ -207,8 +207,13 @@ class WorksheetApp(App[int]):
                 return index
         return 0
 
+    @property
+    def main_screen(self) -> Screen:
+        """The sheet's screen (dialogs are pushed above it)."""
+        return self.screen_stack[0]
+
     def on_resize(self, event: Resize) -> None:
-        self.screen.set_class(event.size.width < NARROW_WIDTH, "-narrow")
+        self.main_screen.set_class(event.size.width < NARROW_WIDTH, "-narrow")
 
     @property
     def sheet(self) -> SheetView:
@@ -417,6 +422,7 @@ class WorksheetApp(App[int]):
 
     @on(QuantityLinks.JumpTo)
     def _jump(self, event: QuantityLinks.JumpTo) -> None:
+        self.main_screen.remove_class("-side-shown")  # the sheet again, in a narrow terminal
         if self.session is not None and not self.sheet.focus_line(self.session.doc, event.line):
             self.say(f"line {event.line} is not in a calc cell now", problem=True)
 
@@ -452,13 +458,13 @@ class WorksheetApp(App[int]):
         """To the quantities panel and back to the same place: cell, cursor and scroll."""
         side = self.query_one("#side")
         if side.has_focus_within:
-            self.screen.remove_class("-side-shown")
+            self.main_screen.remove_class("-side-shown")
             self._back_to_sheet()
             return
         focused = self.focused
         if focused is not None and self.sheet in focused.ancestors_with_self:
             self._place = (focused, self.sheet.scroll_y)
-        self.screen.add_class("-side-shown")
+        self.main_screen.add_class("-side-shown")
         self.query_one(QuantityLedger).focus()
 
     def _back_to_sheet(self) -> None:

@@ -16,7 +16,7 @@ from worksheet.app.keys import KEY_ACTIONS
 EXTRA_KEYS = (
     ("tab / shift+tab", "Move to the next / previous cell or panel"),
     ("ctrl+p", "Command palette: every action by name"),
-    ("enter (ledger)", "Choose a quantity; enter on a link jumps to its line"),
+    ("enter (quantities)", "Choose a quantity; enter on a link jumps to its line"),
     ("escape", "Close this screen or a dialog"),
 )
 
