@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import ClassVar
 
+from rich.table import Table
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
@@ -70,6 +71,15 @@ def search(dataset: Dataset, words: str) -> list[Found]:
     return [entry for _symbol, entry in found]
 
 
+def _entry(found: Found) -> Table:
+    """What to insert in its own column, the rest wrapping beside it (a hanging indent)."""
+    grid = Table.grid(padding=(0, 2))
+    grid.add_column(no_wrap=True, style="bold")
+    grid.add_column(ratio=1)
+    grid.add_row(Text(found.insert), Text(found.description.split("  ", 1)[-1]))
+    return grid
+
+
 class ConstantFinder(ModalScreen[str | None]):
     """Type words; up/down choose; enter hands back the text to insert; escape gives None."""
 
@@ -98,9 +108,7 @@ class ConstantFinder(ModalScreen[str | None]):
         self._found = search(self._dataset, words)
         options = self.query_one(OptionList)
         options.clear_options()
-        options.add_options(
-            [Option(Text(f.description), id=str(k)) for k, f in enumerate(self._found)]
-        )
+        options.add_options([Option(_entry(f), id=str(k)) for k, f in enumerate(self._found)])
         if self._found:
             options.highlighted = 0
 
