@@ -11,6 +11,7 @@ import pytest
 from textual.pilot import Pilot
 
 from worksheet.app.app import WorksheetApp
+from worksheet.app.widgets.ledger import QuantityLedger
 
 # A small sheet of our own: a black hole of 5e11 kg, its radius, temperature and a claim.
 BASIC_SHEET = """---
@@ -60,6 +61,52 @@ async def wait_for(pilot: Pilot, condition: Callable[[], bool], timeout: float =
         await pilot.pause(0.05)
 
 
+def panel_entries(app: WorksheetApp) -> dict[str, str]:
+    """The quantities panel's entries as the screen shows them: name -> the entry's text.
+
+    Read from the panel's region of the screen text: the name column, then the entry's
+    lines joined by spaces (``= 7.426e-16 +- 3.3e-20 m length; given, line 9``). An entry
+    cut by the panel's edge is left out.
+    """
+    ledger = app.query_one(QuantityLedger)
+    region = ledger.scrollable_content_region  # without the scrollbar
+    lines = screen_text(app).splitlines()
+    width = ledger.name_width
+    entries: dict[str, list[str]] = {}
+    names: list[str] = []
+    current: tuple[list[str], list[str]] | None = None
+    for y in range(region.y, region.bottom):
+        part = lines[y][region.x : region.right]
+        name, details = part[:width].strip(), part[width + 1 :].strip()
+        if details.startswith("= "):
+            current = ([name], [details])
+            names.append(name)
+            entries[name] = current[1]
+        elif current is not None and (name or details):
+            if name:
+                current[0].append(name)
+            current[1].append(details)
+        else:
+            current = None
+    if names and region.bottom <= ledger.region.bottom and ledger.max_scroll_y > ledger.scroll_y:
+        entries.pop(names[-1], None)  # may go on below the panel's edge
+    return {name: " ".join(parts) for name, parts in entries.items()}
+
+
+async def all_panel_entries(pilot: Pilot, app: WorksheetApp) -> dict[str, str]:
+    """Every entry of the quantities panel, each read while it is highlighted and at the top."""
+    ledger = app.query_one(QuantityLedger)
+    found: dict[str, str] = {}
+    for index, row in enumerate(ledger.rows):
+        ledger.highlighted = index
+        ledger.scroll_to_highlight(top=True)
+        await pilot.pause(0.05)
+        seen = panel_entries(app)
+        assert row.name in seen, f"{row.name} not readable on the screen"
+        found[row.name] = seen[row.name]
+    return found
+
+
 Scenario = Callable[[Pilot, WorksheetApp], Awaitable[None]]
 
 
@@ -84,6 +131,8 @@ class Driver:
     settle = staticmethod(settle)
     wait_for = staticmethod(wait_for)
     drive = staticmethod(drive)
+    panel_entries = staticmethod(panel_entries)
+    all_panel_entries = staticmethod(all_panel_entries)
 
 
 @pytest.fixture

@@ -184,4 +184,4 @@ def test_a_narrow_sheet_shows_the_text_chart(tmp_path: Path, ui) -> None:
         assert "+-----" in text  # the recorded text chart's frame
         assert "* T_H [K]" in text
 
-    ui.drive(app, scenario, size=(60, 48))
+    ui.drive(app, scenario, size=(44, 48))  # the side panel is hidden below 100 columns

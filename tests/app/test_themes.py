@@ -30,9 +30,19 @@ def test_shipped_themes_load_without_problems() -> None:
 def test_stylesheet_uses_no_literal_colours() -> None:
     # STYLE habit 5: colours only through theme variables.
     text = themes_folder().joinpath(STYLESHEET_NAME).read_text(encoding="utf-8")
-    assert "#" not in text.replace("#title", "").replace("#body", "").replace("#sheet", "").replace(
-        "#side", ""
-    ).replace("#ledger", "").replace("#links", "").replace("#finder-matches", "")
+    ids = (
+        "#title",
+        "#body",
+        "#sheet",
+        "#side",
+        "#ledger",
+        "#links",
+        "#finder-matches",
+        "#at-cursor",
+    )
+    for selector in ids:
+        text = text.replace(selector, "")
+    assert "#" not in text
 
 
 @pytest.mark.parametrize(

@@ -16,8 +16,11 @@ from rich.text import Text
 from textual import on, work
 from textual.app import App, ComposeResult, SystemCommand
 from textual.containers import Horizontal, Vertical
+from textual.events import Resize
 from textual.screen import ModalScreen, Screen
+from textual.theme import BUILTIN_THEMES
 from textual.timer import Timer
+from textual.widget import Widget
 from textual.widgets import Footer, Static, TextArea
 from textual.worker import get_current_worker
 
@@ -38,13 +41,15 @@ from worksheet.app.theme_files import (
     read_theme_file,
 )
 from worksheet.app.widgets.calc_cell import CalcCellView
+from worksheet.app.widgets.calc_editor import CalcEditor
 from worksheet.app.widgets.ledger import QuantityLedger
 from worksheet.app.widgets.links import QuantityLinks
 from worksheet.app.widgets.note_cell import NoteCellView
+from worksheet.app.widgets.result_lines import STATUS_WORDS, result_text
 from worksheet.app.widgets.sheet_view import SheetView
 from worksheet.app.widgets.status_line import StatusLine
 from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET, load_dataset
-from worksheet.document import atomic_write_text, parse_document, render_document
+from worksheet.document import CalcCell, atomic_write_text, parse_document, render_document
 from worksheet.errors import WorksheetError
 
 if TYPE_CHECKING:  # the engine is imported by the first run, after the first paint
@@ -53,15 +58,19 @@ if TYPE_CHECKING:  # the engine is imported by the first run, after the first pa
 
 # Actions that stay available while a dialog is open.
 DIALOG_ACTIONS = frozenset({"leave"})
+# Below this many columns the side panels are hidden; the panel key shows them instead of
+# the sheet (at 80 columns a side panel would leave neither the sheet nor the numbers room).
+NARROW_WIDTH = 100
 
 
 def summary(results: Iterable[StatementResult]) -> str:
     """``5 results: 4 ok, 1 ERROR`` (status words as the result lines show them)."""
-    counts = Counter(r.status for r in results)
+    counts = Counter(r.status for r in results if r.kind != "blank")
     total = sum(counts.values())
     order = ("ok", "failed", "error", "skipped", "stale")
     parts = [f"{counts[s]} {s if s == 'ok' else s.upper()}" for s in order if counts[s]]
-    return f"{total} results: " + ", ".join(parts) if parts else "no results"
+    noun = "result" if total == 1 else "results"
+    return f"{total} {noun}: " + ", ".join(parts) if parts else "no results"
 
 
 class WorksheetApp(App[int]):
@@ -96,6 +105,8 @@ class WorksheetApp(App[int]):
         self._last_recovery: str | None = None
         self._closed = False
         self._notice = ""  # the last cell operation, kept in the status line
+        # Where the sheet's focus was when the panel key moved it to the side panel.
+        self._place: tuple[Widget, float] | None = None
 
     # ----- building the screen
 
@@ -108,6 +119,7 @@ class WorksheetApp(App[int]):
                 yield QuantityLedger(id="ledger")
                 yield Static(Text("Links of the chosen quantity"), classes="panel-title")
                 yield QuantityLinks(id="links")
+        yield Static(id="at-cursor")
         yield StatusLine(id="status")
         yield Footer()
 
@@ -117,6 +129,7 @@ class WorksheetApp(App[int]):
 
     async def on_mount(self) -> None:
         self._install_themes()
+        self.watch(self.screen, "focused", self._focus_moved, init=False)
         try:
             self.session = SheetSession.open(self.sheet_path)
         except WorksheetError as err:
@@ -125,7 +138,9 @@ class WorksheetApp(App[int]):
         self.query_one(QuantityLinks).show(None)
         # Paint the sheet with the results its file records first, then compute: the run
         # would otherwise compete with the first paint for the interpreter.
-        await self._show_document(0, run=False)
+        # A new sheet starts in its empty calc cell, so the first keys typed go into it.
+        first = 0 if self.session.saved is not None else self._first_calc_block()
+        await self._show_document(first, run=False)
         self.call_after_refresh(self.start_run)
         self.set_interval(self.RECOVERY_SECONDS, self.keep_recovery)
         if self.problems:
@@ -177,8 +192,28 @@ class WorksheetApp(App[int]):
                 )
                 wanted = fallback
         self.theme = wanted
+        if self.theme_names:
+            # Only the app's own themes are offered (textual's stock themes are not ours).
+            for name in BUILTIN_THEMES:
+                if name != wanted:
+                    self.unregister_theme(name)
 
     # ----- helpers
+
+    def _first_calc_block(self) -> int:
+        assert self.session is not None
+        for index, block in enumerate(self.session.doc.blocks):
+            if isinstance(block, CalcCell):
+                return index
+        return 0
+
+    @property
+    def main_screen(self) -> Screen:
+        """The sheet's screen (dialogs are pushed above it)."""
+        return self.screen_stack[0]
+
+    def on_resize(self, event: Resize) -> None:
+        self.main_screen.set_class(event.size.width < NARROW_WIDTH, "-narrow")
 
     @property
     def sheet(self) -> SheetView:
@@ -198,11 +233,23 @@ class WorksheetApp(App[int]):
     async def _show_document(
         self, focus: int | None, cursor: tuple[int, int] | None = None, run: bool = True
     ) -> None:
-        """Rebuild every cell view from the session and run the sheet (at once by default)."""
+        """Rebuild every cell view from the session and run the sheet (at once by default).
+
+        The sheet keeps its scroll position; it scrolls only as far as needed to show the
+        focused cell.
+        """
         assert self.session is not None
-        await self.sheet.rebuild(self.session.doc)
-        if focus is not None:
-            self.sheet.focus_block(focus, cursor)
+        sheet = self.sheet
+        scrolled = sheet.scroll_y
+        await sheet.rebuild(self.session.doc)
+        view = sheet.focus_block(focus, cursor) if focus is not None else None
+
+        def back_in_place() -> None:
+            sheet.scroll_to(y=scrolled, animate=False, immediate=True)
+            if view is not None and view.is_mounted:
+                sheet.scroll_to_widget(view, animate=False, immediate=True, top=False)
+
+        self.call_after_refresh(back_in_place)
         self._refresh_title()
         if run:
             self.start_run()
@@ -274,13 +321,70 @@ class WorksheetApp(App[int]):
         ledger.show(outcome.rows)
         chosen = ledger.chosen_name()
         self.query_one(QuantityLinks).show(ledger.row_named(chosen) if chosen else None)
-        notes = list(outcome.run.settings.warnings)
-        state = "unsaved edits" if self.session.dirty else "saved"
-        parts = [summary(outcome.run.results), state, *notes]
+        self._show_status()
+        self._show_cursor_result()
+        self._refresh_title()
+
+    def _show_status(self) -> bool:
+        """What the last run gave and whether the file holds it (False: no run to tell)."""
+        if self.outcome is None or self.outcome.run is None or self.session is None:
+            return False
+        run = self.outcome.run
+        if self.session.dirty:
+            state = "unsaved edits"
+        elif run.stale:
+            # The lines shown are computed afresh; only the file's result blocks lag behind.
+            count = len(run.stale)
+            state = f"the file records {count} result{'s' if count > 1 else ''} differently"
+        else:
+            state = "saved"
+        parts = [summary(run.results), state]
+        parts.extend(run.settings.warnings)
         if self._notice:
             parts.append(self._notice)
         self.say("  |  ".join(parts))
-        self._refresh_title()
+        return True
+
+    # ----- the cursor's line
+
+    @on(TextArea.SelectionChanged)
+    def _cursor_moved(self, event: TextArea.SelectionChanged) -> None:
+        if isinstance(event.text_area, CalcEditor):
+            self._show_cursor_result()
+
+    def _focus_moved(self, _focused: Widget | None) -> None:
+        self._show_cursor_result()
+
+    def _cursor_file_line(self) -> int | None:
+        """The file line of the cursor when it is in a calc cell's editor."""
+        editor = self.focused
+        view = editor.parent if isinstance(editor, CalcEditor) else None
+        if not isinstance(view, CalcCellView) or not isinstance(editor, CalcEditor):
+            return None
+        return view.first_line + editor.cursor_location[0]
+
+    def _show_cursor_result(self) -> None:
+        """The result of the statement under the cursor, beneath the sheet, in full."""
+        strip = self.query_one("#at-cursor", Static)
+        line = self._cursor_file_line()
+        run = self.outcome.run if self.outcome is not None else None
+        strip.display = line is not None
+        if line is None or run is None:
+            strip.update(Text(""))
+            return
+        found = None
+        for source, result in zip(run.statements, run.results, strict=True):
+            if source.line <= line <= source.line + source.text.count("\n"):
+                found = result
+                break
+        if found is None or found.kind == "blank":
+            text = f"line {line}: nothing to record"
+        else:
+            word = STATUS_WORDS.get(found.status, found.status.upper())
+            text = f"line {found.line}: {word}  {result_text(found)}"
+            if found.name is not None:
+                self.query_one(QuantityLedger).choose(found.name)
+        strip.update(Text(text))
 
     # ----- edits inside cells
 
@@ -318,6 +422,7 @@ class WorksheetApp(App[int]):
 
     @on(QuantityLinks.JumpTo)
     def _jump(self, event: QuantityLinks.JumpTo) -> None:
+        self.main_screen.remove_class("-side-shown")  # the sheet again, in a narrow terminal
         if self.session is not None and not self.sheet.focus_line(self.session.doc, event.line):
             self.say(f"line {event.line} is not in a calc cell now", problem=True)
 
@@ -329,11 +434,11 @@ class WorksheetApp(App[int]):
         return True
 
     def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
+        # Only the app's own actions: textual's stock commands are not part of this app.
         for key in KEY_ACTIONS:
             yield SystemCommand(
                 f"{key.label} ({key.key})", key.description, getattr(self, f"action_{key.action}")
             )
-        yield from super().get_system_commands(screen)
 
     def action_show_help(self) -> None:
         self.push_screen(HelpScreen())
@@ -350,12 +455,30 @@ class WorksheetApp(App[int]):
         self.say(f"theme: {self.theme}")
 
     def action_switch_panel(self) -> None:
-        ledger = self.query_one(QuantityLedger)
-        if ledger.has_focus:
-            index = self._current_block()
-            self.sheet.focus_block(index if index is not None else 0)
-        else:
-            ledger.focus()
+        """To the quantities panel and back to the same place: cell, cursor and scroll."""
+        side = self.query_one("#side")
+        if side.has_focus_within:
+            self.main_screen.remove_class("-side-shown")
+            self._back_to_sheet()
+            return
+        focused = self.focused
+        if focused is not None and self.sheet in focused.ancestors_with_self:
+            self._place = (focused, self.sheet.scroll_y)
+        self.main_screen.add_class("-side-shown")
+        self.query_one(QuantityLedger).focus()
+
+    def _back_to_sheet(self) -> None:
+        place, self._place = self._place, None
+        if place is not None and place[0].is_mounted:
+            widget, scrolled = place
+            widget.focus(scroll_visible=False)
+            sheet = self.sheet
+            self.call_after_refresh(
+                lambda: sheet.scroll_to(y=scrolled, animate=False, immediate=True)
+            )
+            return
+        index = self._current_block()
+        self.sheet.focus_block(index if index is not None else 0)
 
     def action_find_constant(self) -> None:
         target = self.focused if isinstance(self.focused, TextArea) else None
@@ -416,6 +539,12 @@ class WorksheetApp(App[int]):
             self.say(f"cannot add a cell here: {err.located()}", problem=True)
             return
         await self._structural(f"added a {kind} cell", where)
+        view = self.sheet.cells()[where]
+        if isinstance(view, NoteCellView):
+            # A new note opens in its editor with its placeholder chosen: typing replaces it.
+            await view.toggle_editing()
+            editor = view.query_one(TextArea)
+            editor.select_all()
 
     async def action_delete_cell(self) -> None:
         index = self._current_block()
@@ -528,12 +657,16 @@ class WorksheetApp(App[int]):
             self.say(problem or "not saved", problem=True)
             return
         self.session.mark_saved(doc, outcome.run.document)  # type: ignore[arg-type]
-        if self.outcome is not None and self.outcome.doc is doc:
-            self.outcome = dataclasses.replace(self.outcome, doc=self.session.doc)
+        if self.outcome is not None and self.outcome.doc is doc and self.outcome.run:
+            # The file now records exactly these results.
+            run = dataclasses.replace(self.outcome.run, document=self.session.doc, stale=())
+            self.outcome = dataclasses.replace(self.outcome, doc=self.session.doc, run=run)
         remove_recovery(self.sheet_path)
         self._last_recovery = None
         self._refresh_title()
-        self.say(f"saved {self.sheet_path.name}")
+        self._notice = f"saved {self.sheet_path.name}"
+        if not self._show_status():
+            self.say(self._notice)
         if then_quit:
             self.finish(0)
 

@@ -25,7 +25,7 @@ KEY_ACTIONS: tuple[KeyAction, ...] = (
         "f2", "find_constant", "Constant", "Find a constant or unit; insert it at the cursor"
     ),
     KeyAction("f3", "toggle_note", "Edit note", "Edit the chosen note, or show it rendered again"),
-    KeyAction("f4", "switch_panel", "Panel", "Move between the sheet and the quantity ledger"),
+    KeyAction("f4", "switch_panel", "Panel", "Move between the sheet and the quantities panel"),
     KeyAction("f6", "next_theme", "Theme", "Switch to the next colour theme", False),
     KeyAction("ctrl+r", "rerun", "Run", "Run the sheet again now", False),
     KeyAction("ctrl+z", "undo", "Undo", "Undo the last edit or cell change", False),

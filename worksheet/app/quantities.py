@@ -31,7 +31,13 @@ def _origin_text(binding: Binding) -> str:
 
 
 def dimension_text(binding: Binding) -> str:
-    """The dimension's word, or its SI base-unit form when it has no word."""
+    """The dimension's word, or its SI base-unit form when it has no word.
+
+    A relation has no dimension of its own (it takes its arguments' at each call): it is
+    described by its parameters instead.
+    """
+    if binding.origin is Origin.RELATION:
+        return f"relation of {', '.join(binding.params)}" if binding.params else "relation"
     return binding.dimension.name().removeprefix("dimension ")
 
 
@@ -45,7 +51,9 @@ def _recorded(result: StatementResult | None, binding: Binding, digits: int) -> 
     if binding.value is not None:
         return format_number(binding.value, digits), binding.dimension.si_unit()
     if result is not None and result.symbolic:
-        return result.symbolic, result.unit or ""
+        # A form in symbols: its dimension is on the line beneath; a unit written after
+        # it would read as a factor.
+        return result.symbolic, ""
     return "(no value)", binding.dimension.si_unit()
 
 
@@ -68,7 +76,9 @@ def quantity_rows(
 ) -> list[QuantityRow]:
     """Sheet quantities in reading order, then the dataset constants the sheet uses."""
     names_of = statement_names(statements)
-    result_of = {r.name: r for r in results if r.name is not None and r.status == "ok"}
+    # The result of the line that defines each name: a later line naming it (a `scaling`
+    # or a display of it) records another view of it, not its own value.
+    result_at = {(r.name, r.line): r for r in results if r.name is not None and r.status == "ok"}
     defined_on = {name: b.line for name, b in bindings.items() if b.line is not None}
 
     def read_by(name: str, own_line: int | None) -> tuple[int, ...]:
@@ -78,7 +88,8 @@ def quantity_rows(
 
     rows: list[QuantityRow] = []
     for name, binding in bindings.items():
-        value, unit = _recorded(result_of.get(name), binding, digits)
+        result = result_at.get((name, binding.line))
+        value, unit = _recorded(result, binding, digits)
 
         used = names_of.get(binding.line, frozenset()) if binding.line is not None else frozenset()
         reads = tuple(
@@ -87,7 +98,6 @@ def quantity_rows(
                 key=lambda item: item[1],
             )
         )
-        result = result_of.get(name)
         rows.append(
             QuantityRow(
                 name,

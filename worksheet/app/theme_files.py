@@ -3,7 +3,10 @@
 A theme file holds ``name``, ``dark`` (true or false), a ``[colours]`` table with textual's
 theme colours (``primary`` required) and an optional ``[variables]`` table with the app's
 own state colours: ``result-ok``, ``result-failed``, ``result-error``, ``result-stale``.
-Missing state colours are taken from ``success``, ``error`` and ``warning``.
+Missing state colours are taken from ``success``, ``error`` and ``warning``. An optional
+``[syntax]`` table colours the calc-cell grammar (``comment``, ``unit``, ``number``,
+``verb``, ``keyword``, ``function``, ``name``); missing ones are taken from the theme's
+colours. They become the variables ``syntax-comment`` and so on.
 """
 
 from __future__ import annotations
@@ -44,6 +47,23 @@ STATE_DEFAULTS = {
     "result-stale": "warning",
 }
 FALLBACK = {"success": "#4caf50", "error": "#e53935", "warning": "#ffb300"}
+# Grammar kinds of worksheet/app/highlight.py and the theme colour each defaults to.
+SYNTAX_DEFAULTS = {
+    "comment": "secondary",
+    "unit": "success",
+    "number": "accent",
+    "verb": "primary",
+    "keyword": "primary",
+    "function": "primary",
+    "name": "foreground",
+}
+SYNTAX_FALLBACK = {
+    "secondary": "#8e7cc3",
+    "success": "#4caf50",
+    "accent": "#e0a458",
+    "primary": "#5b9bd5",
+    "foreground": "#dcdcdc",
+}
 
 
 @dataclass(frozen=True)
@@ -90,6 +110,19 @@ def parse_theme(text: str, label: str) -> Theme:
     extra = {str(k): _colour(v, f"{label}: variables.{k}") for k, v in variables.items()}
     for variable, source in STATE_DEFAULTS.items():
         extra.setdefault(variable, chosen.get(source, FALLBACK[source]))
+    syntax = data.get("syntax", {})
+    if not isinstance(syntax, dict):
+        raise WorksheetError(f"theme file {label}: [syntax] must be a table")
+    unknown = sorted(set(syntax) - set(SYNTAX_DEFAULTS))
+    if unknown:
+        raise WorksheetError(f"theme file {label}: unknown syntax kinds {', '.join(unknown)}")
+    for kind, source in SYNTAX_DEFAULTS.items():
+        colour = syntax.get(kind)
+        extra[f"syntax-{kind}"] = (
+            _colour(colour, f"{label}: syntax.{kind}")
+            if colour is not None
+            else chosen.get(source, SYNTAX_FALLBACK[source])
+        )
     dark = data.get("dark", True)
     if not isinstance(dark, bool):
         raise WorksheetError(f"theme file {label}: 'dark' must be true or false")

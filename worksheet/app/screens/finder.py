@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import ClassVar
 
+from rich.table import Table
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
@@ -26,33 +27,57 @@ class Found:
     description: str
 
 
+def _rank(symbol: str, typed: str) -> int:
+    """0: the symbol is what was typed; 1: the same but for case; 2: it starts so; 3: other."""
+    bare = typed.strip().strip("[]")
+    if symbol == bare:
+        return 0
+    if symbol.casefold() == bare.casefold():
+        return 1
+    if bare and symbol.casefold().startswith(bare.casefold()):
+        return 2
+    return 3
+
+
 def search(dataset: Dataset, words: str) -> list[Found]:
     """Constants, the dataset's units, then common SI units, matching every word (any case).
 
     A word matches the symbol, the name, or (for the common units) what the unit measures.
+    Symbols equal to what was typed come first, then those that start with it; otherwise
+    the order above is kept.
     """
-    needles = words.casefold().split()
+    needles = [needle.strip("[]") for needle in words.casefold().split()]
 
     def matches(symbol: str, name: str) -> bool:
         haystack = f"{symbol} {name}".casefold()
         return all(needle in haystack for needle in needles)
 
     found = [
-        Found(c.symbol, f"{c.symbol}  {c.name} = {c.value} {c.unit}")
+        (c.symbol, Found(c.symbol, f"{c.symbol}  {c.name} = {c.value} {c.unit}"))
         for c in dataset.constants.values()
         if matches(c.symbol, c.name)
     ]
     found += [
-        Found(f"[{u.symbol}]", f"[{u.symbol}]  {u.name} = {u.value} {u.unit}")
+        (u.symbol, Found(f"[{u.symbol}]", f"[{u.symbol}]  {u.name} = {u.value} {u.unit}"))
         for u in dataset.units.values()
         if matches(u.symbol, u.name)
     ]
     found += [
-        Found(f"[{symbol}]", f"[{symbol}]  {name} ({kind})")
+        (symbol, Found(f"[{symbol}]", f"[{symbol}]  {name} ({kind})"))
         for symbol, name, kind in COMMON_UNITS
         if symbol not in dataset.units and matches(symbol, f"{name} {kind}")
     ]
-    return found
+    found.sort(key=lambda item: _rank(item[0], words))  # stable: ties keep their order
+    return [entry for _symbol, entry in found]
+
+
+def _entry(found: Found) -> Table:
+    """What to insert in its own column, the rest wrapping beside it (a hanging indent)."""
+    grid = Table.grid(padding=(0, 2))
+    grid.add_column(no_wrap=True, style="bold")
+    grid.add_column(ratio=1)
+    grid.add_row(Text(found.insert), Text(found.description.split("  ", 1)[-1]))
+    return grid
 
 
 class ConstantFinder(ModalScreen[str | None]):
@@ -83,9 +108,7 @@ class ConstantFinder(ModalScreen[str | None]):
         self._found = search(self._dataset, words)
         options = self.query_one(OptionList)
         options.clear_options()
-        options.add_options(
-            [Option(Text(f.description), id=str(k)) for k, f in enumerate(self._found)]
-        )
+        options.add_options([Option(_entry(f), id=str(k)) for k, f in enumerate(self._found)])
         if self._found:
             options.highlighted = 0
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from typing import ClassVar
 
+from rich.table import Table
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
@@ -16,7 +17,7 @@ from worksheet.app.keys import KEY_ACTIONS
 EXTRA_KEYS = (
     ("tab / shift+tab", "Move to the next / previous cell or panel"),
     ("ctrl+p", "Command palette: every action by name"),
-    ("enter (ledger)", "Choose a quantity; enter on a link jumps to its line"),
+    ("enter (quantities)", "Choose a quantity; enter on a link jumps to its line"),
     ("escape", "Close this screen or a dialog"),
 )
 
@@ -31,13 +32,15 @@ class HelpScreen(ModalScreen[None]):
 
     def compose(self) -> ComposeResult:
         rows = [(k.key, k.description) for k in KEY_ACTIONS] + list(EXTRA_KEYS)
-        width = max(len(key) for key, _ in rows) + 2
-        text = Text("Keys\n\n")
+        # Two columns, so a description that wraps stays under its own column.
+        grid = Table.grid(padding=(0, 2))
+        grid.add_column(no_wrap=True, style="bold")
+        grid.add_column(ratio=1)
         for key, description in rows:
-            text.append(f"{key:<{width}}", style="bold")
-            text.append(description + "\n")
+            grid.add_row(Text(key), Text(description))
         with VerticalScroll(classes="dialog help"):
-            yield Static(text)
+            yield Static(Text("Keys\n"))
+            yield Static(grid)
 
     def action_close(self) -> None:
         self.dismiss(None)

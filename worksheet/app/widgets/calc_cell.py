@@ -118,10 +118,10 @@ class CalcCellView(Vertical):
             self.first_line = first_line
             self.query_one(".cell-header", Static).update(self._header())
 
-    def focus_row(self, row: int, column: int = 0) -> None:
+    def focus_row(self, row: int, column: int = 0, scroll: bool = True) -> None:
         """Put the cursor at body row ``row`` (and ``column``, clamped) and focus the editor."""
         editor = self.editor
-        editor.focus()
+        editor.focus(scroll_visible=scroll)
         row = max(0, min(row, editor.document.line_count - 1))
         column = max(0, min(column, len(editor.document.get_line(row))))
         editor.move_cursor((row, column))

@@ -7,6 +7,7 @@ from functools import lru_cache
 from textual.widgets import TextArea
 
 from worksheet.app.highlight import STYLE_OF, line_spans
+from worksheet.app.syntax_theme import syntax_theme, syntax_theme_name
 
 
 def _byte_offsets(line: str) -> list[int]:
@@ -39,6 +40,17 @@ class CalcEditor(TextArea):
 
     def __init__(self, text: str, **kwargs: object) -> None:
         super().__init__(text, tab_behavior="focus", soft_wrap=True, **kwargs)  # type: ignore[arg-type]
+
+    def on_mount(self) -> None:
+        self._follow_app_theme()
+        self.app.theme_changed_signal.subscribe(self, lambda _theme: self._follow_app_theme())
+
+    def _follow_app_theme(self) -> None:
+        """Colour the grammar with the app theme's syntax colours (readable on its surface)."""
+        name = syntax_theme_name(self.app.theme)
+        if name not in self._themes:
+            self.register_theme(syntax_theme(self.app.theme, self.app.current_theme.variables))
+        self.theme = name
 
     def _build_highlight_map(self) -> None:
         # Textual's hook for syntax highlighting; filled from our own tokenizer.

@@ -1,29 +1,50 @@
-"""The quantity ledger: every named quantity with value, unit, dimension and origin."""
+"""The quantity ledger: every named quantity with value, unit, dimension and origin.
+
+Each quantity is a wrapped entry of the list, never a cell cut to a column's width: the
+value wraps at spaces (a number is split only if it is wider than the whole panel, and
+then folded, never cut), and the dimension and origin are on the line beneath, so
+everything is reachable at any width by moving up and down.
+"""
 
 from __future__ import annotations
 
 from collections.abc import Sequence
 
+from rich.table import Table
 from rich.text import Text
 from textual import on
 from textual.message import Message
-from textual.widgets import DataTable
-from textual.widgets.data_table import ColumnKey
+from textual.widgets import OptionList
+from textual.widgets.option_list import Option
 
 from worksheet.app.quantity_row import QuantityRow
 
-COLUMNS = ("name", "value", "dimension", "origin")
+# Names up to this long get a column of their own; longer ones fold within it.
+MAX_NAME_COLUMN = 14
 
 
-def _cells(row: QuantityRow) -> tuple[Text, Text, Text, Text]:
-    # Text cells: a plain str would be read as markup and lose "[...]".
-    return Text(row.name), Text(row.shown_value), Text(row.dimension), Text(row.origin)
+def name_column_width(rows: Sequence[QuantityRow]) -> int:
+    return min(MAX_NAME_COLUMN, max((len(row.name) for row in rows), default=1))
 
 
-class QuantityLedger(DataTable[Text]):
-    """A row per quantity; moving the cursor posts ``QuantityLedger.Chosen``.
+def entry(row: QuantityRow, name_width: int) -> Table:
+    """``name  = value +- u unit`` and, beneath the value, ``dimension; origin``.
 
-    Keys: the arrow keys move between rows; enter chooses a row (as DataTable does).
+    Two columns, so wrapped lines hang under the value; text is never read as markup.
+    """
+    grid = Table.grid(padding=(0, 1))
+    grid.add_column(width=name_width, overflow="fold", no_wrap=False)
+    grid.add_column(ratio=1, overflow="fold")
+    details = Text(f"= {row.shown_value}")
+    details.append(f"\n{row.dimension}; {row.origin}", style="dim")
+    grid.add_row(Text(row.name), details)
+    return grid
+
+
+class QuantityLedger(OptionList):
+    """An entry per quantity; moving the highlight posts ``QuantityLedger.Chosen``.
+
+    Keys: the arrow keys move between entries; enter chooses one.
     """
 
     class Chosen(Message):
@@ -34,48 +55,59 @@ class QuantityLedger(DataTable[Text]):
             self.row = row
 
     def __init__(self, **kwargs: object) -> None:
-        super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)  # type: ignore[arg-type]
+        super().__init__(**kwargs)  # type: ignore[arg-type]
         self._rows: dict[str, QuantityRow] = {}
-        self._column_keys: list[ColumnKey] = []
-
-    def on_mount(self) -> None:
-        self._column_keys = self.add_columns(*COLUMNS)
+        self.name_width = 1
 
     def show(self, rows: Sequence[QuantityRow]) -> None:
-        """Show ``rows``: only changed cells are redrawn when the names stay the same."""
+        """Show ``rows``: only changed entries are redrawn when the names stay the same."""
         fresh = {row.name: row for row in rows}
-        if list(fresh) == list(self._rows):
+        width = name_column_width(rows)
+        if list(fresh) == list(self._rows) and width == self.name_width:
             for name, row in fresh.items():
-                old = self._rows[name]
-                if row != old:
-                    for column, (new_cell, old_cell) in enumerate(
-                        zip(_cells(row), _cells(old), strict=True)
-                    ):
-                        if new_cell != old_cell:
-                            self.update_cell(
-                                name, self._column_keys[column], new_cell, update_width=True
-                            )
+                if row != self._rows[name]:
+                    self.replace_option_prompt(name, entry(row, width))
             self._rows = fresh
             return
         keep = self.chosen_name()
-        self.clear()
         self._rows = fresh
-        for row in rows:
-            self.add_row(*_cells(row), key=row.name)
-        if keep in self._rows:
-            self.move_cursor(row=list(self._rows).index(keep))
+        self.name_width = width
+        self.set_options([Option(entry(row, width), id=row.name) for row in rows])
+        if keep in fresh:
+            self.highlighted = list(fresh).index(keep)
+        elif fresh:
+            self.highlighted = 0
+
+    @property
+    def rows(self) -> tuple[QuantityRow, ...]:
+        return tuple(self._rows.values())
 
     def chosen_name(self) -> str | None:
-        if not self._rows or self.cursor_row < 0 or self.cursor_row >= len(self._rows):
+        index = self.highlighted
+        if index is None or not 0 <= index < len(self._rows):
             return None
-        return list(self._rows)[self.cursor_row]
+        return list(self._rows)[index]
 
     def row_named(self, name: str) -> QuantityRow | None:
         return self._rows.get(name)
 
-    @on(DataTable.RowHighlighted)
-    def _highlighted(self, event: DataTable.RowHighlighted) -> None:
+    def choose(self, name: str) -> None:
+        """Highlight the quantity ``name`` (from the sheet's cursor); unknown names: nothing."""
+        if name in self._rows:
+            index = list(self._rows).index(name)
+            if self.highlighted != index:
+                self.highlighted = index
+
+    @on(OptionList.OptionHighlighted)
+    def _highlighted(self, event: OptionList.OptionHighlighted) -> None:
         event.stop()
-        key = event.row_key.value if event.row_key is not None else None
-        if key in self._rows:
-            self.post_message(self.Chosen(self._rows[key]))
+        row = self._rows.get(event.option.id or "")
+        if row is not None:
+            self.post_message(self.Chosen(row))
+
+    @on(OptionList.OptionSelected)
+    def _selected(self, event: OptionList.OptionSelected) -> None:
+        event.stop()
+        row = self._rows.get(event.option.id or "")
+        if row is not None:
+            self.post_message(self.Chosen(row))

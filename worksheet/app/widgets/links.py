@@ -30,7 +30,7 @@ class QuantityLinks(OptionList):
         self._shown = row
         self.clear_options()
         if row is None:
-            self.add_option(Option(Text("choose a quantity in the ledger"), disabled=True))
+            self.add_option(Option(Text("choose a quantity above"), disabled=True))
             return
         options: list[Option] = [
             Option(

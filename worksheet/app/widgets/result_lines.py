@@ -77,6 +77,8 @@ def result_parts(results: Iterable[StatementResult]) -> list[Part]:
     parts: list[Part] = []
     lines: list[Line] = []
     for result in results:
+        if result.kind == "blank" and not result.record:
+            continue  # a blank or comment-only line records nothing: no row for it
         data = getattr(result, "plot", None)
         if result.kind == "histogram":  # a sampled quantity's histogram (issue 13)
             data = getattr(getattr(result, "sampled", None), "histogram", None)
@@ -114,7 +116,11 @@ class ResultLines(Static):
 
     def show(self, results: Iterable[StatementResult]) -> None:
         """Show the results (sheet text is never read as markup, so [kg] stays visible)."""
-        self.show_lines(tuple(result_line(result) for result in results))
+        self.show_lines(
+            tuple(
+                result_line(result) for result in results if result.kind != "blank" or result.record
+            )
+        )
 
     def show_lines(self, lines: tuple[Line, ...]) -> None:
         """Show lines made by ``result_line`` (a placeholder when there are none)."""

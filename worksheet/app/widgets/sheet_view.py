@@ -60,8 +60,12 @@ class SheetView(VerticalScroll):
                 view.place(view.index, block.first_line)
 
     def show_run(self, run: SheetRun) -> None:
-        """Show each calc cell's results (with staleness against the recorded text)."""
-        marked = run.with_staleness()
+        """Show each calc cell's results as computed now.
+
+        They are not marked against what the file records: the results are fresh, and
+        the status line says when the file's result blocks differ.
+        """
+        marked = run.results
         calc_views = [view for view in self.cells() if isinstance(view, CalcCellView)]
         per_cell: list[list[StatementResult]] = [[] for _ in calc_views]
         for source, result in zip(run.statements, marked, strict=True):
@@ -70,23 +74,24 @@ class SheetView(VerticalScroll):
         for view, results in zip(calc_views, per_cell, strict=True):
             view.show_results(results)
 
-    def focus_block(self, index: int, cursor: tuple[int, int] | None = None) -> None:
+    def focus_block(self, index: int, cursor: tuple[int, int] | None = None) -> CellView | None:
         """Focus the cell at ``index`` or the nearest one that is shown (blank notes are not).
 
         ``cursor`` (row, column) goes back into a calc cell's editor, clamped to its text.
+        Nothing is scrolled here: the caller scrolls once the cells are laid out.
         """
         cells = [view for view in self.cells() if not view.blank]
         if not cells:
-            return
+            return None
         view = min(cells, key=lambda v: (abs(v.index - index), v.index < index))
         if isinstance(view, CalcCellView):
             if cursor is not None and view.index == index:
-                view.focus_row(*cursor)
+                view.focus_row(*cursor, scroll=False)
             else:
-                view.editor.focus()
+                view.editor.focus(scroll_visible=False)
         else:
-            view.focus()
-        view.scroll_visible()
+            view.focus(scroll_visible=False)
+        return view
 
     def focus_line(self, doc: SheetDocument, line: int) -> bool:
         """Focus the calc cell holding file line ``line``, cursor on it; False if none."""

@@ -1,0 +1,31 @@
+"""The calc editors' syntax colours, made from the app theme's ``syntax-*`` variables.
+
+textual's TextArea colours highlights from its own themes, whose colours are fixed for a
+dark background; these follow the app's theme instead (see ``theme_files``).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+
+from rich.style import Style
+from textual.widgets.text_area import TextAreaTheme
+
+from worksheet.app.highlight import STYLE_OF
+from worksheet.app.theme_files import SYNTAX_DEFAULTS, SYNTAX_FALLBACK
+
+# Kinds drawn in italics or bold as well as in colour, so they read in monochrome too.
+EMPHASIS = {"comment": {"italic": True}, "verb": {"bold": True}, "keyword": {"bold": True}}
+
+
+def syntax_theme_name(app_theme: str) -> str:
+    return f"worksheet-{app_theme}"
+
+
+def syntax_theme(app_theme: str, variables: Mapping[str, str]) -> TextAreaTheme:
+    """A TextAreaTheme with one style per grammar kind, from the theme's variables."""
+    styles = {}
+    for kind, highlight in STYLE_OF.items():
+        colour = variables.get(f"syntax-{kind}") or SYNTAX_FALLBACK[SYNTAX_DEFAULTS[kind]]
+        styles[highlight] = Style(color=colour, **EMPHASIS.get(kind, {}))
+    return TextAreaTheme(name=syntax_theme_name(app_theme), syntax_styles=styles)
