@@ -7,11 +7,17 @@ command line, the app and the Python API all go through it.
 from __future__ import annotations
 
 import dataclasses
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 
 from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET
-from worksheet.document import SheetDocument, parse_document, render_document, with_results
+from worksheet.document import (
+    ResultBlock,
+    SheetDocument,
+    parse_document,
+    render_document,
+    with_results,
+)
 from worksheet.engine import (
     Context,
     SheetEvaluator,
@@ -95,12 +101,29 @@ def _key_line(doc: SheetDocument, key: str) -> int | None:
     return None
 
 
-def document_statements(doc: SheetDocument) -> list[SourceStatement]:
-    """Every statement of every calc cell, in reading order, with its file line."""
+def document_statements(
+    doc: SheetDocument,
+    cache: dict[tuple[str, int, int], list[SourceStatement]] | None = None,
+    sizes: list[int] | None = None,
+) -> list[SourceStatement]:
+    """Every statement of every calc cell, in reading order, with its file line.
+
+    ``cache`` (the runner's) keeps each cell's statements by its body, first line and
+    position, so a re-run after an edit splits only the cells that changed; ``sizes``
+    receives the number of statements of each cell.
+    """
     statements: list[SourceStatement] = []
     for cell_index, cell in enumerate(doc.calc_cells()):
-        body = "\n".join(cell.body_lines())
-        statements.extend(split_statements(body, cell.first_line, cell_index))
+        key = (cell.body, cell.first_line, cell_index)
+        split = cache.get(key) if cache is not None else None
+        if split is None:
+            body = "\n".join(cell.body_lines())
+            split = split_statements(body, cell.first_line, cell_index)
+            if cache is not None:
+                cache[key] = split
+        statements.extend(split)
+        if sizes is not None:
+            sizes.append(len(split))
     return statements
 
 
@@ -153,6 +176,9 @@ class SheetRunner:
     def __init__(self) -> None:
         self._contexts: dict[tuple[str, int, float, bool], Context] = {}
         self._evaluators: dict[tuple[str, int, float, bool], SheetEvaluator] = {}
+        self._cells: dict[tuple[str, int, int], list[SourceStatement]] = {}
+        self._records: dict[tuple[int, ...], tuple[tuple, list[str], list[list[str]]]] = {}
+        self._recorded: dict[int, tuple[ResultBlock, tuple[str, ...]]] = {}
 
     def evaluator(self, settings: SheetSettings) -> SheetEvaluator:
         key = (settings.dataset, settings.digits, settings.seconds, settings.guard)
@@ -166,15 +192,13 @@ class SheetRunner:
 
     def run(self, doc: SheetDocument) -> SheetRun:
         settings = read_settings(doc)
-        statements = document_statements(doc)
+        if len(self._cells) > 2 * len(doc.blocks) + 100:
+            self._cells.clear()
+        sizes: list[int] = []
+        statements = document_statements(doc, self._cells, sizes)
         results = self.evaluator(settings).run(statements)
-        per_cell: list[list[str]] = [[] for _ in doc.calc_cells()]
-        lines_of: list[list[str]] = []
-        for source, result in zip(statements, results, strict=True):
-            lines = result.record.split("\n") if result.record else []
-            lines_of.append(lines)
-            per_cell[source.cell].extend(lines)
-        stale = _staleness(doc, statements, results, lines_of)
+        per_cell, lines_of = self._recorded_lines(results, sizes)
+        stale = _staleness(doc, statements, results, lines_of, per_cell, self._result_lines, sizes)
         new_doc = with_results(doc, per_cell)
         return SheetRun(
             settings,
@@ -184,6 +208,44 @@ class SheetRunner:
             render_document(new_doc),
             tuple(stale),
         )
+
+    def _result_lines(self, block: ResultBlock) -> tuple[str, ...]:
+        """A recorded block's lines, split once per block object."""
+        found = self._recorded.get(id(block))
+        if found is None or found[0] is not block:
+            if len(self._recorded) > 4 * len(self._cells) + 100:
+                self._recorded.clear()
+            found = self._recorded[id(block)] = (block, block.lines())
+        return found[1]
+
+    def _recorded_lines(
+        self, results: Sequence[StatementResult], sizes: Sequence[int]
+    ) -> tuple[list[list[str]], list[list[str]]]:
+        """The lines each cell records and each statement records, cell by cell.
+
+        A cell whose results are the very objects of the last run (the evaluator reuses
+        them for unchanged statements) takes its lines from the last run, so an edit costs
+        what its own cells cost.
+        """
+        per_cell: list[list[str]] = []
+        lines_of: list[list[str]] = []
+        previous = self._records
+        kept: dict[tuple[int, ...], tuple[tuple, list[str], list[list[str]]]] = {}
+        start = 0
+        for size in sizes:
+            end = start + size
+            own = tuple(results[start:end])
+            key = tuple(map(id, own))
+            found = previous.get(key)
+            if found is None:
+                each = [r.record.split("\n") if r.record else [] for r in own]
+                found = (own, [line for lines in each for line in lines], each)
+            kept[key] = found
+            per_cell.append(found[1])
+            lines_of.extend(found[2])
+            start = end
+        self._records = kept
+        return per_cell, lines_of
 
     def close(self) -> None:
         for context in self._contexts.values():
@@ -195,30 +257,40 @@ def _staleness(
     statements: Sequence[SourceStatement],
     results: Sequence[StatementResult],
     lines_of: Sequence[list[str]],
+    per_cell: Sequence[list[str]],
+    recorded_lines: Callable[[ResultBlock], tuple[str, ...]] = ResultBlock.lines,
+    sizes: Sequence[int] | None = None,
 ) -> list[StaleLine]:
-    """Recorded lines that differ from what the run records now, statement by statement."""
-    stale: list[StaleLine] = []
+    """Recorded lines that differ from what the run records now, statement by statement.
+
+    A cell whose recorded lines are exactly the new ones is passed over whole.
+    """
     cells = doc.calc_cells()
-    position = [0] * len(cells)
-    for source, result, lines in zip(statements, results, lines_of, strict=True):
-        if not lines:
+    if sizes is None:
+        sizes = [sum(1 for s in statements if s.cell == index) for index in range(len(cells))]
+    stale: list[StaleLine] = []
+    extras: list[StaleLine] = []
+    start = 0
+    for cell, lines, size in zip(cells, per_cell, sizes, strict=True):
+        first, start = start, start + size
+        recorded_all = recorded_lines(cell.result) if cell.result is not None else ()
+        if cell.result is not None and recorded_all == tuple(lines):
             continue
-        cell = cells[source.cell]
-        recorded_all = cell.result.lines() if cell.result is not None else ()
-        start = position[source.cell]
-        recorded = list(recorded_all[start : start + len(lines)])
-        position[source.cell] = start + len(lines)
-        if recorded != lines:
-            shown = "\n".join(recorded) if recorded else None
-            stale.append(StaleLine(result, shown, "\n".join(lines)))
-    for index, cell in enumerate(cells):
-        extra = cell.result.lines()[position[index] :] if cell.result is not None else ()
-        if extra:
+        position = 0
+        for k in range(first, start):
+            own = lines_of[k]
+            if not own:
+                continue
+            recorded = list(recorded_all[position : position + len(own)])
+            position += len(own)
+            if recorded != own:
+                shown = "\n".join(recorded) if recorded else None
+                stale.append(StaleLine(results[k], shown, "\n".join(own)))
+        extra = recorded_all[position:]
+        if extra and size:
             # Extra recorded lines with nothing to match them: the last statement is stale.
-            last = [r for s, r in zip(statements, results, strict=True) if s.cell == index]
-            if last:
-                stale.append(StaleLine(last[-1], "\n".join(extra), "(nothing)"))
-    return stale
+            extras.append(StaleLine(results[start - 1], "\n".join(extra), "(nothing)"))
+    return stale + extras
 
 
 def run_text(text: str, runner: SheetRunner | None = None) -> SheetRun:

@@ -252,6 +252,9 @@ class MpBackend(Backend):
 
 FLOAT = Backend()
 
+# sympy's non-finite numbers are singletons: compared by identity, without sympy's __eq__.
+_NAN, _INFINITY, _MINUS_INFINITY, _ZOO = sympy.nan, sympy.oo, sympy.S.NegativeInfinity, sympy.zoo
+
 
 def evaluate(expr: sympy.Expr, values: Mapping[sympy.Symbol, Any], backend: Backend = FLOAT) -> Any:
     """The number of ``expr`` with each symbol replaced by ``values[symbol]``.
@@ -260,7 +263,9 @@ def evaluate(expr: sympy.Expr, values: Mapping[sympy.Symbol, Any], backend: Back
     >>> evaluate(2 * x**2 + 1, {x: 3.0})
     19.0
     """
-    table = backend.functions()
+    table = backend.__dict__.get("_function_table")
+    if table is None:  # built once per backend: it is the same table every time
+        table = backend._function_table = backend.functions()  # type: ignore[attr-defined]
     cache: dict[sympy.Expr, Any] = {}
 
     def walk(node: sympy.Expr) -> Any:
@@ -272,7 +277,7 @@ def evaluate(expr: sympy.Expr, values: Mapping[sympy.Symbol, Any], backend: Back
             except KeyError:
                 raise MissingValue(node) from None
         elif node.is_Number:
-            if node is sympy.nan or node in (sympy.oo, -sympy.oo, sympy.zoo):
+            if node is _NAN or node is _INFINITY or node is _MINUS_INFINITY or node is _ZOO:
                 raise EvaluationError(f"the result is {node} (not a finite number)")
             result = backend.number(node)
         elif isinstance(node, sympy.NumberSymbol):

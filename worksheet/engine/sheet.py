@@ -2,9 +2,11 @@
 
 from __future__ import annotations
 
+import contextlib
+import gc
 import heapq
 import re
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 
 import sympy
@@ -100,6 +102,24 @@ class _Slot:
     binding: Binding | None = None
 
 
+@contextlib.contextmanager
+def _collector_paused() -> Iterator[None]:
+    """No cyclic garbage collection while a whole sheet runs.
+
+    Each statement leaves long-lived results, bindings and sympy objects behind, and every
+    full collection would scan all of them again: on a long sheet that grows with the
+    square of its length. The statements make little cyclic garbage, so the collector
+    waits until the run is over (and is left as it was found).
+    """
+    was_enabled = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was_enabled:
+            gc.enable()
+
+
 class SheetEvaluator:
     """Evaluates a list of statements; re-evaluates only what a change can affect.
 
@@ -142,6 +162,10 @@ class SheetEvaluator:
         fast = self._run_changed_only(statements)
         if fast is not None:
             return fast
+        with _collector_paused():
+            return self._run_all(statements)
+
+    def _run_all(self, statements: Sequence[SourceStatement]) -> list[StatementResult]:
         old = {(slot.source.line, slot.source.text): slot for slot in self._slots}
         slots: list[_Slot] = []
         for source in statements:
@@ -207,6 +231,8 @@ class SheetEvaluator:
             return None
         changed: list[int] = []
         for index, (source, slot) in enumerate(zip(statements, slots, strict=True)):
+            if source is slot.source:
+                continue  # the runner hands unchanged cells' statements back as they were
             if source.line != slot.source.line or source.cell != slot.source.cell:
                 return None
             if source.text != slot.source.text:
