@@ -74,3 +74,20 @@ def test_issue12_a_worker_start_imports_what_the_verbs_need() -> None:
     finally:
         worker.close()
     assert all(name in sys.modules for name in VERB_MODULES)
+
+
+@pytest.mark.parametrize(
+    "expr",
+    [
+        a / (8 * sympy.pi * b * M0 * k),  # T_H ~ 1/M
+        4 * sympy.pi * b * M0**2 / a,  # S ~ M^2
+        5120 * sympy.pi * b**2 * M0**3 / (a * k**4),  # t_ev ~ M^3
+        sympy.sqrt(M0) * a,
+        a * b,  # no M0 at all
+    ],
+)
+def test_issue12_log_slope_of_a_monomial_is_what_simplify_gives(expr) -> None:
+    fast = ops.log_slope(expr, M0)
+    slow = sympy.simplify(M0 * sympy.diff(expr, M0) / expr)
+    assert fast == slow
+    assert sympy.srepr(fast) == sympy.srepr(slow)

@@ -163,5 +163,14 @@ def decide_order(lhs: sympy.Expr, rhs: sympy.Expr, op: str) -> bool | None:
 
 
 def log_slope(expr: sympy.Expr, variable: sympy.Symbol) -> sympy.Expr:
-    """d ln f / d ln x: a constant exactly when f is a power law in x."""
+    """d ln f / d ln x: a constant exactly when f is a power law in x.
+
+    For a monomial it is the exponent of x, read off without simplify.
+    """
+    if is_monomial(expr):
+        return sympy.Add(*(power for base, power in _factors(expr) if base == variable))
     return sympy.simplify(variable * sympy.diff(expr, variable) / expr)
+
+
+def _factors(expr: sympy.Expr) -> list[tuple[sympy.Expr, sympy.Expr]]:
+    return [factor.as_base_exp() for factor in (expr.args if expr.is_Mul else (expr,))]
