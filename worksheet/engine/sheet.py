@@ -5,6 +5,8 @@ from __future__ import annotations
 import contextlib
 import gc
 import heapq
+import itertools
+import operator
 import re
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
@@ -131,6 +133,8 @@ class SheetEvaluator:
     def __init__(self, context: Context):
         self.ctx = context
         self._slots: list[_Slot] = []
+        self._sources: list[SourceStatement] = []  # slot sources, for a C-speed comparison
+        self._results: list[StatementResult] = []  # one per slot after a run
         self._parse_cache: dict[tuple[int, str], tuple] = {}
         self._state: _RunState | None = None
 
@@ -218,7 +222,9 @@ class SheetEvaluator:
             for name in slot.uses:
                 users.setdefault(name, []).append(index)
         self._state = _RunState(first_definer, visible, failed, values, users, lookup, evaluator)
-        return [slot.result for slot in slots if slot.result is not None]
+        self._sources = [slot.source for slot in slots]
+        self._results = [slot.result for slot in slots if slot.result is not None]
+        return list(self._results)
 
     def _run_changed_only(self, statements: Sequence[SourceStatement]) -> list | None:
         """Edits that keep every line and every defined name: re-run only the dependents.
@@ -229,10 +235,16 @@ class SheetEvaluator:
         slots = self._slots
         if state is None or len(statements) != len(slots):
             return None
+        if len(self._sources) != len(slots):
+            return None
         changed: list[int] = []
-        for index, (source, slot) in enumerate(zip(statements, slots, strict=True)):
-            if source is slot.source:
-                continue  # the runner hands unchanged cells' statements back as they were
+        # The runner hands unchanged cells' statements back as the same objects: only the
+        # others are looked at (found by identity, at C speed).
+        others = list(
+            itertools.compress(range(len(slots)), map(operator.is_not, statements, self._sources))
+        )
+        for index in others:
+            source, slot = statements[index], slots[index]
             if source.line != slot.source.line or source.cell != slot.source.cell:
                 return None
             if source.text != slot.source.text:
@@ -241,15 +253,19 @@ class SheetEvaluator:
             parsed, defines, uses = self._parse(statements[index])
             if defines != slots[index].defines:
                 return None
+        for index in others:  # same text, line and cell, or changed: keep the new object
+            slots[index].source = statements[index]
         for index in changed:
             parsed, defines, uses = self._parse(statements[index])
             slots[index] = _Slot(statements[index], parsed, defines, uses)
+        self._sources = list(statements)
         users = state.users
         for index in changed:  # the reverse map may gain names the new text reads
             for name in slots[index].uses:
                 if index not in users.setdefault(name, []):
                     users[name].append(index)
                     users[name].sort()
+        one_each = len(self._results) == len(slots)
         pending = list(changed)
         heapq.heapify(pending)
         done: set[int] = set()
@@ -270,6 +286,8 @@ class SheetEvaluator:
                 state.evaluator,
             )
             slot.result, slot.binding = result, binding
+            if one_each:
+                self._results[index] = result
             name = slot.defines
             if name is not None and state.first_definer.get(name) == index:
                 if binding is not None:
@@ -282,6 +300,8 @@ class SheetEvaluator:
                 for user in users.get(name, ()):
                     if user > index and user not in done:
                         heapq.heappush(pending, user)
+        if one_each:
+            return list(self._results)
         return [slot.result for slot in slots if slot.result is not None]
 
     def _evaluate_slot(
