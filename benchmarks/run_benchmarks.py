@@ -221,6 +221,7 @@ def sweep(rounds: int) -> None:
         lifetime *= masses
         lifetime *= masses
 
+    interleaved({"numpy": by_hand, "ours": ours}, 5)  # warm both
     times = interleaved({"numpy": by_hand, "ours": ours}, rounds)
     print(
         row(
@@ -310,7 +311,7 @@ def main() -> None:
     sizes = [10_000] if quick else [10_000, 50_000]
     large_checks(sizes, times["calc"], times["floor"], rounds=3)
     edit_path([100, 1000, 10_000] if quick else [100, 1000, 10_000, 50_000], rounds=11)
-    sweep(rounds=15)
+    sweep(rounds=41)
     verbs(rounds=7)
     print(f"(all figures measured in {time.perf_counter() - started:.0f} s)")
 

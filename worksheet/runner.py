@@ -7,11 +7,14 @@ command line, the app and the Python API all go through it.
 from __future__ import annotations
 
 import dataclasses
+import operator
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
+from itertools import accumulate, compress
 
 from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET
 from worksheet.document import (
+    CalcCell,
     ResultBlock,
     SheetDocument,
     parse_document,
@@ -132,6 +135,7 @@ class StaleLine:
     statement: StatementResult
     recorded: str | None
     recomputed: str
+    extra: bool = False  # recorded lines past the cell's last statement
 
 
 @dataclass(frozen=True)
@@ -170,6 +174,61 @@ class SheetRun:
         return tuple(marked)
 
 
+@dataclass
+class _LastRun:
+    """What the runner keeps of its last run, for the next one after an edit."""
+
+    settings: SheetSettings
+    cells: tuple[CalcCell, ...]
+    statements: list[SourceStatement]
+    results: list[StatementResult]
+    sizes: list[int]
+    starts: list[int]
+    cell_of: list[int]
+    per_cell: list[list[str]]
+    lines_of: list[list[str]]
+    not_current: set[int]
+    stale: dict[int, StaleLine] = field(default_factory=dict)
+
+    @classmethod
+    def of(
+        cls,
+        settings: SheetSettings,
+        doc: SheetDocument,
+        statements: list[SourceStatement],
+        results: list[StatementResult],
+        sizes: list[int],
+        per_cell: list[list[str]],
+        lines_of: list[list[str]],
+    ) -> _LastRun:
+        cells = doc.calc_cells()
+        starts = list(accumulate(sizes, initial=0))[:-1]
+        cell_of = [position for position, size in enumerate(sizes) for _ in range(size)]
+        not_current = {
+            position
+            for position, (cell, lines) in enumerate(zip(cells, per_cell, strict=True))
+            if cell.result is None or cell.result.lines() != tuple(lines)
+        }
+        return cls(
+            settings,
+            cells,
+            list(statements),
+            list(results),
+            list(sizes),
+            starts,
+            cell_of,
+            per_cell,
+            lines_of,
+            not_current,
+        )
+
+
+def _reading_order(item: StaleLine) -> tuple[bool, int]:
+    """Statement-level staleness in reading order, then the extra recorded lines (as
+    ``_staleness`` lists them)."""
+    return (item.extra, item.statement.line)
+
+
 class SheetRunner:
     """Runs documents, keeping one evaluator per settings so re-runs are incremental."""
 
@@ -179,6 +238,7 @@ class SheetRunner:
         self._cells: dict[tuple[str, int, int], list[SourceStatement]] = {}
         self._records: dict[tuple[int, ...], tuple[tuple, list[str], list[list[str]]]] = {}
         self._recorded: dict[int, tuple[ResultBlock, tuple[str, ...]]] = {}
+        self._last: _LastRun | None = None
 
     def evaluator(self, settings: SheetSettings) -> SheetEvaluator:
         key = (settings.dataset, settings.digits, settings.seconds, settings.guard)
@@ -192,6 +252,10 @@ class SheetRunner:
 
     def run(self, doc: SheetDocument) -> SheetRun:
         settings = read_settings(doc)
+        after_edit = self._run_after_edit(doc, settings)
+        if after_edit is not None:
+            return after_edit
+        self._last = None
         if len(self._cells) > 2 * len(doc.blocks) + 100:
             self._cells.clear()
         sizes: list[int] = []
@@ -200,6 +264,8 @@ class SheetRunner:
         per_cell, lines_of = self._recorded_lines(results, sizes)
         stale = _staleness(doc, statements, results, lines_of, per_cell, self._result_lines, sizes)
         new_doc = with_results(doc, per_cell)
+        self._last = _LastRun.of(settings, doc, statements, results, sizes, per_cell, lines_of)
+        self._last.stale = {id(item.statement): item for item in stale}
         return SheetRun(
             settings,
             tuple(statements),
@@ -207,6 +273,83 @@ class SheetRunner:
             new_doc,
             render_document(new_doc),
             tuple(stale),
+        )
+
+    def _run_after_edit(self, doc: SheetDocument, settings: SheetSettings) -> SheetRun | None:
+        """A re-run that looks only at the cells that changed since the last run.
+
+        Cells are compared by identity (an edit keeps the cells it does not touch), and so
+        are the evaluator's results (it keeps those of statements it did not re-run); only
+        the cells with a new cell object or a new result are split, recorded and compared
+        with their recorded lines again. None when the last run is not comparable (other
+        settings, cells added or removed, a cell with a new number of statements).
+        """
+        last = self._last
+        cells = doc.calc_cells()
+        if last is None or last.settings != settings or len(cells) != len(last.cells):
+            return None
+        edited = list(compress(range(len(cells)), map(operator.is_not, cells, last.cells)))
+        statements = list(last.statements)
+        for position in edited:
+            cell = cells[position]
+            split = split_statements("\n".join(cell.body_lines()), cell.first_line, position)
+            start, size = last.starts[position], last.sizes[position]
+            if len(split) != size:
+                return None
+            statements[start : start + size] = split
+        results = self.evaluator(settings).run(statements)
+        if len(results) != len(statements):
+            return None
+        moved = compress(range(len(results)), map(operator.is_not, results, last.results))
+        touched = sorted(set(edited) | {last.cell_of[index] for index in moved})
+        per_cell = list(last.per_cell)
+        lines_of = list(last.lines_of)
+        stale = dict(last.stale)
+        for position in touched:
+            start, size = last.starts[position], last.sizes[position]
+            for old in last.results[start : start + size]:
+                stale.pop(id(old), None)
+            each = [r.record.split("\n") if r.record else [] for r in results[start : start + size]]
+            lines_of[start : start + size] = each
+            per_cell[position] = [line for lines in each for line in lines]
+        for item in _staleness(
+            doc,
+            statements,
+            results,
+            lines_of,
+            per_cell,
+            self._result_lines,
+            last.sizes,
+            only=touched,
+        ):
+            stale[id(item.statement)] = item
+        new_doc = with_results(doc, per_cell, only=sorted(set(touched) | last.not_current))
+        ordered = sorted(stale.values(), key=_reading_order)
+        not_current = last.not_current - set(touched)
+        for position in touched:
+            recorded = cells[position].result
+            if recorded is None or self._result_lines(recorded) != tuple(per_cell[position]):
+                not_current.add(position)
+        self._last = _LastRun(
+            settings,
+            cells,
+            statements,
+            results,
+            last.sizes,
+            last.starts,
+            last.cell_of,
+            per_cell,
+            lines_of,
+            not_current,
+            stale,
+        )
+        return SheetRun(
+            settings,
+            tuple(statements),
+            tuple(results),
+            new_doc,
+            render_document(new_doc),
+            tuple(ordered),
         )
 
     def _result_lines(self, block: ResultBlock) -> tuple[str, ...]:
@@ -260,36 +403,39 @@ def _staleness(
     per_cell: Sequence[list[str]],
     recorded_lines: Callable[[ResultBlock], tuple[str, ...]] = ResultBlock.lines,
     sizes: Sequence[int] | None = None,
+    only: Sequence[int] | None = None,
 ) -> list[StaleLine]:
     """Recorded lines that differ from what the run records now, statement by statement.
 
-    A cell whose recorded lines are exactly the new ones is passed over whole.
+    A cell whose recorded lines are exactly the new ones is passed over whole; ``only``
+    limits the comparison to those cell positions (in order).
     """
     cells = doc.calc_cells()
     if sizes is None:
         sizes = [sum(1 for s in statements if s.cell == index) for index in range(len(cells))]
+    starts = list(accumulate(sizes, initial=0))
     stale: list[StaleLine] = []
     extras: list[StaleLine] = []
-    start = 0
-    for cell, lines, size in zip(cells, per_cell, sizes, strict=True):
-        first, start = start, start + size
+    for position in range(len(cells)) if only is None else only:
+        cell, lines, size = cells[position], per_cell[position], sizes[position]
+        first, start = starts[position], starts[position] + size
         recorded_all = recorded_lines(cell.result) if cell.result is not None else ()
         if cell.result is not None and recorded_all == tuple(lines):
             continue
-        position = 0
+        offset = 0
         for k in range(first, start):
             own = lines_of[k]
             if not own:
                 continue
-            recorded = list(recorded_all[position : position + len(own)])
-            position += len(own)
+            recorded = list(recorded_all[offset : offset + len(own)])
+            offset += len(own)
             if recorded != own:
                 shown = "\n".join(recorded) if recorded else None
                 stale.append(StaleLine(results[k], shown, "\n".join(own)))
-        extra = recorded_all[position:]
+        extra = recorded_all[offset:]
         if extra and size:
             # Extra recorded lines with nothing to match them: the last statement is stale.
-            extras.append(StaleLine(results[start - 1], "\n".join(extra), "(nothing)"))
+            extras.append(StaleLine(results[start - 1], "\n".join(extra), "(nothing)", True))
     return stale + extras
 
 

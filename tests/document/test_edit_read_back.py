@@ -79,3 +79,47 @@ def _outcome(function, *args):
 def test_issue12_fences_in_a_cell_come_out_as_the_full_round_trip_says(body: str) -> None:
     doc = edit._finish(parse_document("```calc\na = 1\n```\n\n```result\na = 1\n```\n\nNote.\n"))
     assert _outcome(replace_cell_body, doc, 0, body) == _outcome(_full_round_trip, doc, 0, body)
+
+
+def _long_sheet(cells: int) -> str:
+    parts = ["---\ntitle: t\nconstants: CODATA2018\n---\n"]
+    parts.append("```calc\nM = 5e11 [kg]\nr = 2*G*M/c^2\n```\n\n")
+    for k in range(cells):
+        parts.append(f"Step {k}.\n\n```calc\nx{k} = {k + 1} [m]\ny{k} = x{k}*r/(1 [m])\n```\n\n")
+    return "".join(parts)
+
+
+def test_issue12_runs_after_edits_match_a_fresh_run() -> None:
+    # A stale cell stays stale, an edited cell and the cells that read it are redone, and
+    # every face (text, results, staleness) is what a fresh runner gives for the same doc.
+    with _runner() as runner:
+        doc = runner.run(parse_document(_long_sheet(30))).document
+        stale_cell = doc.calc_cell_indices()[5]
+        doc = edit.replace(
+            doc,
+            blocks=tuple(
+                edit.replace(b, result=edit.replace(b.result, body="x4 = 99 m\n"))
+                if k == stale_cell
+                else b
+                for k, b in enumerate(doc.blocks)
+            ),
+        )
+        runner.run(doc)
+        first = doc.calc_cell_indices()[0]
+        edits = [
+            (first, "M = 6e11 [kg]\nr = 2*G*M/c^2\n"),
+            (doc.calc_cell_indices()[9], "x8 = 7 [m]\ny8 = x8*r/(1 [m])\n"),
+            (first, "M = 6e11 [kg]\nr = 3*G*M/c^2\n"),
+            (doc.calc_cell_indices()[3], "x2 = 1 [m]\ny2 = x2*q/(1 [m])\n"),  # an error
+        ]
+        for index, body in edits:
+            doc = replace_cell_body(doc, index, body)
+            ours = runner.run(doc)
+            with _runner() as fresh_runner:
+                fresh = fresh_runner.run(doc)
+            assert ours.text == fresh.text
+            assert [r.record for r in ours.results] == [r.record for r in fresh.results]
+            assert [(s.statement.line, s.recorded, s.recomputed) for s in ours.stale] == [
+                (s.statement.line, s.recorded, s.recomputed) for s in fresh.stale
+            ]
+            assert ours.stale  # the hand-spoilt cell and every edit leave stale lines

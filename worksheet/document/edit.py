@@ -274,7 +274,11 @@ def _result_body(lines: Sequence[str], newline: str) -> str:
     return newline.join(lines) + newline if lines else ""
 
 
-def with_results(doc: SheetDocument, results: Sequence[Sequence[str] | None]) -> SheetDocument:
+def with_results(
+    doc: SheetDocument,
+    results: Sequence[Sequence[str] | None],
+    only: Sequence[int] | None = None,
+) -> SheetDocument:
     """Record result lines after each calc cell.
 
     Args:
@@ -282,6 +286,9 @@ def with_results(doc: SheetDocument, results: Sequence[Sequence[str] | None]) ->
         results: one entry per calc cell, in order: the lines to record (the result block is
             created after the cell when missing, its body replaced when present), or
             ``None`` to remove the cell's result block.
+
+        only: the positions (in ``results``) of the cells that may need new results, when
+            the caller knows that every other cell already records its entry.
 
     Returns:
         The new document; a new block is fenced with backticks after one empty line.
@@ -295,7 +302,12 @@ def with_results(doc: SheetDocument, results: Sequence[Sequence[str] | None]) ->
         raise DocumentError("each result entry must be a list of lines, not a single string")
     blocks = list(doc.blocks)
     changed: dict[int, CalcCell] = {}
-    for index, lines in zip(cells, results, strict=True):
+    pairs = (
+        zip(cells, results, strict=True)
+        if only is None
+        else ((cells[position], results[position]) for position in only)
+    )
+    for index, lines in pairs:
         cell = blocks[index]
         assert isinstance(cell, CalcCell)
         if lines is None:
