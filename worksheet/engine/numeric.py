@@ -400,6 +400,9 @@ class DualBackend(Backend):
 DUAL = DualBackend()
 
 
+_SPLIT: dict[tuple[sympy.Expr, sympy.Symbol], tuple[sympy.Expr, sympy.Expr]] = {}
+
+
 def evaluate_on_array(
     expr: sympy.Expr, symbol: sympy.Symbol, array: Any, values: Mapping[sympy.Symbol, Any]
 ) -> Any:
@@ -410,7 +413,12 @@ def evaluate_on_array(
     what hand-written numpy with folded constants costs.
     """
     np = numpy_backend().np
-    coefficient, rest = expr.as_independent(symbol, as_Add=False)
+    split = _SPLIT.get((expr, symbol))
+    if split is None:  # the form's structure does not change with the values: kept
+        if len(_SPLIT) >= 1024:
+            _SPLIT.clear()
+        split = _SPLIT[(expr, symbol)] = expr.as_independent(symbol, as_Add=False)
+    coefficient, rest = split
     scale = evaluate(coefficient, values)
     base, power = rest.as_base_exp()
     if base == symbol and power.is_Integer and 0 < abs(int(power)) <= 8:
