@@ -7,12 +7,22 @@ command line, the app and the Python API all go through it.
 from __future__ import annotations
 
 import dataclasses
+import operator
 import os
-from collections.abc import Sequence
+import re
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
+from itertools import accumulate, compress
 
 from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET
-from worksheet.document import SheetDocument, parse_document, render_document, with_results
+from worksheet.document import (
+    CalcCell,
+    ResultBlock,
+    SheetDocument,
+    parse_document,
+    render_document,
+    with_results,
+)
 from worksheet.engine import (
     Context,
     SheetEvaluator,
@@ -124,12 +134,29 @@ def _key_line(doc: SheetDocument, key: str) -> int | None:
     return None
 
 
-def document_statements(doc: SheetDocument) -> list[SourceStatement]:
-    """Every statement of every calc cell, in reading order, with its file line."""
+def document_statements(
+    doc: SheetDocument,
+    cache: dict[tuple[str, int, int], list[SourceStatement]] | None = None,
+    sizes: list[int] | None = None,
+) -> list[SourceStatement]:
+    """Every statement of every calc cell, in reading order, with its file line.
+
+    ``cache`` (the runner's) keeps each cell's statements by its body, first line and
+    position, so a re-run after an edit splits only the cells that changed; ``sizes``
+    receives the number of statements of each cell.
+    """
     statements: list[SourceStatement] = []
     for cell_index, cell in enumerate(doc.calc_cells()):
-        body = "\n".join(cell.body_lines())
-        statements.extend(split_statements(body, cell.first_line, cell_index))
+        key = (cell.body, cell.first_line, cell_index)
+        split = cache.get(key) if cache is not None else None
+        if split is None:
+            body = "\n".join(cell.body_lines())
+            split = split_statements(body, cell.first_line, cell_index)
+            if cache is not None:
+                cache[key] = split
+        statements.extend(split)
+        if sizes is not None:
+            sizes.append(len(split))
     return statements
 
 
@@ -138,6 +165,7 @@ class StaleLine:
     statement: StatementResult
     recorded: str | None
     recomputed: str
+    extra: bool = False  # recorded lines past the cell's last statement
 
 
 @dataclass(frozen=True)
@@ -182,9 +210,67 @@ class SheetRun:
         return tuple(marked)
 
 
+@dataclass
+class _LastRun:
+    """What the runner keeps of its last run, for the next one after an edit."""
+
+    settings: SheetSettings
+    cells: tuple[CalcCell, ...]
+    statements: list[SourceStatement]
+    results: list[StatementResult]
+    sizes: list[int]
+    starts: list[int]
+    cell_of: list[int]
+    per_cell: list[list[str]]
+    lines_of: list[list[str]]
+    not_current: set[int]
+    stale: dict[int, StaleLine] = field(default_factory=dict)
+    uses_sheets: bool = False  # a 'use' line: every run re-reads the used files
+
+    @classmethod
+    def of(
+        cls,
+        settings: SheetSettings,
+        doc: SheetDocument,
+        statements: list[SourceStatement],
+        results: list[StatementResult],
+        sizes: list[int],
+        per_cell: list[list[str]],
+        lines_of: list[list[str]],
+    ) -> _LastRun:
+        cells = doc.calc_cells()
+        starts = list(accumulate(sizes, initial=0))[:-1]
+        cell_of = [position for position, size in enumerate(sizes) for _ in range(size)]
+        not_current = {
+            position
+            for position, (cell, lines) in enumerate(zip(cells, per_cell, strict=True))
+            if cell.result is None or cell.result.lines() != tuple(lines)
+        }
+        return cls(
+            settings,
+            cells,
+            list(statements),
+            list(results),
+            list(sizes),
+            starts,
+            cell_of,
+            per_cell,
+            lines_of,
+            not_current,
+        )
+
+
+def _reading_order(item: StaleLine) -> tuple[bool, int]:
+    """Statement-level staleness in reading order, then the extra recorded lines (as
+    ``_staleness`` lists them)."""
+    return (item.extra, item.statement.line)
+
+
 MAX_RENUMBERING_RUNS = 3
 """A run whose result blocks move later cells is repeated with the new line numbers; the
 second run keeps every block's size (one record per statement), so it is final."""
+
+_USE_LINE = re.compile(r"^\s*use[\s\"]", re.MULTILINE)
 
 
 class SheetRunner:
@@ -209,6 +295,10 @@ class SheetRunner:
         self._imports = SheetImports()
         self._contexts: dict[tuple, Context] = {}
         self._evaluators: dict[tuple, SheetEvaluator] = {}
+        self._cells: dict[tuple[str, int, int], list[SourceStatement]] = {}
+        self._records: dict[tuple[int, ...], tuple[tuple, list[str], list[list[str]]]] = {}
+        self._recorded: dict[int, tuple[ResultBlock, tuple[str, ...]]] = {}
+        self._last: _LastRun | None = None
 
     def settings(self, doc: SheetDocument) -> SheetSettings:
         """The front matter's settings with this runner's overrides applied."""
@@ -252,24 +342,39 @@ class SheetRunner:
         (what ``worksheet run`` and saving use). ``use`` paths resolve from ``path`` (or the
         runner's ``sheet_path``)."""
         settings = self.settings(doc)
+        if not lines_as_written:
+            after_edit = self._run_after_edit(doc, settings)
+            if after_edit is not None:
+                return after_edit
+        self._last = None
+        if len(self._cells) > 2 * len(doc.blocks) + 100:
+            self._cells.clear()
         evaluator = self.evaluator(settings)
-        statements = document_statements(doc)
         pinned = read_settings(doc).dataset
+        sizes: list[int] = []
+        statements = document_statements(doc, self._cells, sizes)
+        renumbered = False
         for _ in range(MAX_RENUMBERING_RUNS):
             scope = self._imports.scope_for(
                 statements, path or self.sheet_path, evaluator.ctx, pinned
             )
             evaluator.set_imports(scope)
             results = evaluator.run(statements)
-            per_cell, lines_of = _recorded_lines(doc, statements, results)
+            per_cell, lines_of = self._recorded_lines(results, sizes)
             new_doc = with_results(doc, per_cell)
+            if not lines_as_written:
+                break
             as_written = document_statements(new_doc)
-            if not lines_as_written or _same_lines(as_written, statements):
+            if _same_lines(as_written, statements):
                 break
             # Result blocks were inserted or resized, so later cells moved: run again with
             # the line numbers of the file as it is written, which messages cite.
-            statements = as_written
-        stale = _staleness(doc, statements, results, lines_of)
+            statements, renumbered = as_written, True
+        stale = _staleness(doc, statements, results, lines_of, per_cell, self._result_lines, sizes)
+        if not renumbered:  # an edit's re-run splits cells at the lines of ``doc``
+            self._last = _LastRun.of(settings, doc, statements, results, sizes, per_cell, lines_of)
+            self._last.stale = {id(item.statement): item for item in stale}
+            self._last.uses_sheets = any(result.kind == "use" for result in results)
         return SheetRun(
             settings,
             tuple(statements),
@@ -278,6 +383,129 @@ class SheetRunner:
             render_document(new_doc),
             tuple(stale),
         )
+
+    def _run_after_edit(self, doc: SheetDocument, settings: SheetSettings) -> SheetRun | None:
+        """A re-run that looks only at the cells that changed since the last run.
+
+        Cells are compared by identity (an edit keeps the cells it does not touch), and so
+        are the evaluator's results (it keeps those of statements it did not re-run); only
+        the cells with a new cell object or a new result are split, recorded and compared
+        with their recorded lines again. None when the last run is not comparable (other
+        settings, cells added or removed, a cell with a new number of statements).
+        """
+        last = self._last
+        cells = doc.calc_cells()
+        if (
+            last is None
+            or last.uses_sheets
+            or last.settings != settings
+            or len(cells) != len(last.cells)
+        ):
+            return None
+        edited = list(compress(range(len(cells)), map(operator.is_not, cells, last.cells)))
+        statements = list(last.statements)
+        for position in edited:
+            cell = cells[position]
+            if _USE_LINE.search(cell.body):
+                return None  # a new 'use' line: the full run resolves the used files
+            split = split_statements("\n".join(cell.body_lines()), cell.first_line, position)
+            start, size = last.starts[position], last.sizes[position]
+            if len(split) != size:
+                return None
+            statements[start : start + size] = split
+        results = self.evaluator(settings).run(statements)
+        if len(results) != len(statements):
+            return None
+        moved = compress(range(len(results)), map(operator.is_not, results, last.results))
+        touched = sorted(set(edited) | {last.cell_of[index] for index in moved})
+        per_cell = list(last.per_cell)
+        lines_of = list(last.lines_of)
+        stale = dict(last.stale)
+        for position in touched:
+            start, size = last.starts[position], last.sizes[position]
+            for old in last.results[start : start + size]:
+                stale.pop(id(old), None)
+            each = [r.record.split("\n") if r.record else [] for r in results[start : start + size]]
+            lines_of[start : start + size] = each
+            per_cell[position] = [line for lines in each for line in lines]
+        for item in _staleness(
+            doc,
+            statements,
+            results,
+            lines_of,
+            per_cell,
+            self._result_lines,
+            last.sizes,
+            only=touched,
+        ):
+            stale[id(item.statement)] = item
+        new_doc = with_results(doc, per_cell, only=sorted(set(touched) | last.not_current))
+        ordered = sorted(stale.values(), key=_reading_order)
+        not_current = last.not_current - set(touched)
+        for position in touched:
+            recorded = cells[position].result
+            if recorded is None or self._result_lines(recorded) != tuple(per_cell[position]):
+                not_current.add(position)
+        self._last = _LastRun(
+            settings,
+            cells,
+            statements,
+            results,
+            last.sizes,
+            last.starts,
+            last.cell_of,
+            per_cell,
+            lines_of,
+            not_current,
+            stale,
+            last.uses_sheets,
+        )
+        return SheetRun(
+            settings,
+            tuple(statements),
+            tuple(results),
+            new_doc,
+            render_document(new_doc),
+            tuple(ordered),
+        )
+
+    def _result_lines(self, block: ResultBlock) -> tuple[str, ...]:
+        """A recorded block's lines, split once per block object."""
+        found = self._recorded.get(id(block))
+        if found is None or found[0] is not block:
+            if len(self._recorded) > 4 * len(self._cells) + 100:
+                self._recorded.clear()
+            found = self._recorded[id(block)] = (block, block.lines())
+        return found[1]
+
+    def _recorded_lines(
+        self, results: Sequence[StatementResult], sizes: Sequence[int]
+    ) -> tuple[list[list[str]], list[list[str]]]:
+        """The lines each cell records and each statement records, cell by cell.
+
+        A cell whose results are the very objects of the last run (the evaluator reuses
+        them for unchanged statements) takes its lines from the last run, so an edit costs
+        what its own cells cost.
+        """
+        per_cell: list[list[str]] = []
+        lines_of: list[list[str]] = []
+        previous = self._records
+        kept: dict[tuple[int, ...], tuple[tuple, list[str], list[list[str]]]] = {}
+        start = 0
+        for size in sizes:
+            end = start + size
+            own = tuple(results[start:end])
+            key = tuple(map(id, own))
+            found = previous.get(key)
+            if found is None:
+                each = [r.record.split("\n") if r.record else [] for r in own]
+                found = (own, [line for lines in each for line in lines], each)
+            kept[key] = found
+            per_cell.append(found[1])
+            lines_of.extend(found[2])
+            start = end
+        self._records = kept
+        return per_cell, lines_of
 
     def close(self) -> None:
         for context in self._contexts.values():
@@ -288,50 +516,48 @@ def _same_lines(a: Sequence[SourceStatement], b: Sequence[SourceStatement]) -> b
     return [s.line for s in a] == [s.line for s in b]
 
 
-def _recorded_lines(
-    doc: SheetDocument,
-    statements: Sequence[SourceStatement],
-    results: Sequence[StatementResult],
-) -> tuple[list[list[str]], list[list[str]]]:
-    """The result-block lines of each cell, and the lines of each statement."""
-    per_cell: list[list[str]] = [[] for _ in doc.calc_cells()]
-    lines_of: list[list[str]] = []
-    for source, result in zip(statements, results, strict=True):
-        lines = result.record.split("\n") if result.record else []
-        lines_of.append(lines)
-        per_cell[source.cell].extend(lines)
-    return per_cell, lines_of
-
-
 def _staleness(
     doc: SheetDocument,
     statements: Sequence[SourceStatement],
     results: Sequence[StatementResult],
     lines_of: Sequence[list[str]],
+    per_cell: Sequence[list[str]],
+    recorded_lines: Callable[[ResultBlock], tuple[str, ...]] = ResultBlock.lines,
+    sizes: Sequence[int] | None = None,
+    only: Sequence[int] | None = None,
 ) -> list[StaleLine]:
-    """Recorded lines that differ from what the run records now, statement by statement."""
-    stale: list[StaleLine] = []
+    """Recorded lines that differ from what the run records now, statement by statement.
+
+    A cell whose recorded lines are exactly the new ones is passed over whole; ``only``
+    limits the comparison to those cell positions (in order).
+    """
     cells = doc.calc_cells()
-    position = [0] * len(cells)
-    for source, result, lines in zip(statements, results, lines_of, strict=True):
-        if not lines:
+    if sizes is None:
+        sizes = [sum(1 for s in statements if s.cell == index) for index in range(len(cells))]
+    starts = list(accumulate(sizes, initial=0))
+    stale: list[StaleLine] = []
+    extras: list[StaleLine] = []
+    for position in range(len(cells)) if only is None else only:
+        cell, lines, size = cells[position], per_cell[position], sizes[position]
+        first, start = starts[position], starts[position] + size
+        recorded_all = recorded_lines(cell.result) if cell.result is not None else ()
+        if cell.result is not None and recorded_all == tuple(lines):
             continue
-        cell = cells[source.cell]
-        recorded_all = cell.result.lines() if cell.result is not None else ()
-        start = position[source.cell]
-        recorded = list(recorded_all[start : start + len(lines)])
-        position[source.cell] = start + len(lines)
-        if recorded != lines:
-            shown = "\n".join(recorded) if recorded else None
-            stale.append(StaleLine(result, shown, "\n".join(lines)))
-    for index, cell in enumerate(cells):
-        extra = cell.result.lines()[position[index] :] if cell.result is not None else ()
-        if extra:
+        offset = 0
+        for k in range(first, start):
+            own = lines_of[k]
+            if not own:
+                continue
+            recorded = list(recorded_all[offset : offset + len(own)])
+            offset += len(own)
+            if recorded != own:
+                shown = "\n".join(recorded) if recorded else None
+                stale.append(StaleLine(results[k], shown, "\n".join(own)))
+        extra = recorded_all[offset:]
+        if extra and size:
             # Extra recorded lines with nothing to match them: the last statement is stale.
-            last = [r for s, r in zip(statements, results, strict=True) if s.cell == index]
-            if last:
-                stale.append(StaleLine(last[-1], "\n".join(extra), "(nothing)"))
-    return stale
+            extras.append(StaleLine(results[start - 1], "\n".join(extra), "(nothing)", True))
+    return stale + extras
 
 
 def run_text(text: str, runner: SheetRunner | None = None) -> SheetRun:

@@ -5,6 +5,11 @@ is that reading, so ``first_line`` numbers are always right, and an edit that wo
 how the file reads back (a note holding a ``calc`` fence, an unclosed fence, ...) is refused
 with a ``DocumentError`` instead of producing a file that means something else.
 
+An edit that only replaces calc cells of a document that came from an edit (and so is known
+to read back as itself) reads back only the changed cells (``_finish_cells``): a cell is
+closed by its own fences, so what it holds cannot change how its neighbours read. That keeps
+typing in a long sheet independent of the sheet's size.
+
 Text given to an edit has its line ends changed to the document's ``newline``. Empty notes
 are dropped and neighbouring notes merge into one, as the reader would see them, so block
 indices can shift after an edit: take them from the returned document.
@@ -13,7 +18,8 @@ indices can shift after an edit: take them from the returned document.
 from __future__ import annotations
 
 import re
-from collections.abc import Sequence
+import weakref
+from collections.abc import Mapping, Sequence
 from dataclasses import replace
 
 from worksheet.document.model import (
@@ -34,7 +40,7 @@ from worksheet.document.reader import (
     opening_fence,
     parse_document,
 )
-from worksheet.document.writer import render_document, render_result_body
+from worksheet.document.writer import render_block, render_document, render_result_body
 from worksheet.errors import DocumentError
 
 _ANY_LINE_END = re.compile(r"\r\n|\n|\r")
@@ -180,7 +186,71 @@ def _finish(doc: SheetDocument) -> SheetDocument:
         raise DocumentError(
             f"the edit would change the sheet's meaning: {_why_different(candidate, reread)}"
         )
-    return replace(reread, newline=doc.newline)
+    return _verified(replace(reread, newline=doc.newline))
+
+
+# Documents known to read back as themselves (every edit's output), by identity: weak, so
+# the set never keeps a document alive.
+_READ_BACK: dict[int, weakref.ref[SheetDocument]] = {}
+
+
+def _verified(doc: SheetDocument) -> SheetDocument:
+    key = id(doc)
+    _READ_BACK[key] = weakref.ref(doc, lambda _ref, key=key: _READ_BACK.pop(key, None))
+    return doc
+
+
+def _is_verified(doc: SheetDocument) -> bool:
+    ref = _READ_BACK.get(id(doc))
+    return ref is not None and ref() is doc
+
+
+def _finish_cells(doc: SheetDocument, changed: Mapping[int, CalcCell]) -> SheetDocument | None:
+    """``doc`` with the calc cells at ``changed`` replaced, reading back only those cells.
+
+    None when the short cut does not apply (``doc`` not known to read back as itself, or a
+    changed cell that would not read back alone as the same cell): the caller then takes
+    the full round trip, which also words the error.
+    """
+    if not _is_verified(doc):
+        return None
+    if not changed:
+        return doc
+    blocks = list(doc.blocks)
+    last = len(blocks) - 1
+    shift_after: dict[int, int] = {}
+    shift = 0
+    for index in sorted(changed):
+        old = blocks[index]
+        if not isinstance(old, CalcCell):
+            return None
+        cell = _fit_cell(changed[index], doc.newline, followed=index < last)
+        following = blocks[index + 1] if index < last else None
+        if isinstance(following, NoteBlock) and _starts_with_result_fence(following.text):
+            return None
+        text = render_block(cell)
+        try:
+            alone = parse_document(text)
+        except DocumentError:
+            return None
+        if (
+            alone.front_matter is not None
+            or len(alone.blocks) != 1
+            or replace(alone.blocks[0], first_line=0) != replace(cell, first_line=0)
+        ):
+            return None
+        blocks[index] = replace(cell, first_line=old.first_line + shift)
+        shift += len(split_lines(text)) - len(split_lines(render_block(old)))
+        shift_after[index] = shift
+    if shift or any(shift_after.values()):
+        running = 0
+        for index in range(min(changed), len(blocks)):
+            if index in shift_after:
+                running = shift_after[index]
+            else:
+                block = blocks[index]
+                blocks[index] = replace(block, first_line=block.first_line + running)
+    return _verified(replace(doc, blocks=tuple(blocks)))
 
 
 def _block_at(doc: SheetDocument, index: int) -> Block:
@@ -196,7 +266,19 @@ def _new_result(lines: Sequence[str], old: ResultBlock | None, newline: str) -> 
     return replace(old, body=body)
 
 
-def with_results(doc: SheetDocument, results: Sequence[Sequence[str] | None]) -> SheetDocument:
+def _result_body(lines: Sequence[str], newline: str) -> str:
+    """``render_result_body``, joined at C speed when no line holds a line break."""
+    plain = "".join(lines)
+    if "\n" in plain or "\r" in plain:
+        return render_result_body(lines, newline)
+    return newline.join(lines) + newline if lines else ""
+
+
+def with_results(
+    doc: SheetDocument,
+    results: Sequence[Sequence[str] | None],
+    only: Sequence[int] | None = None,
+) -> SheetDocument:
     """Record result lines after each calc cell.
 
     Args:
@@ -204,6 +286,9 @@ def with_results(doc: SheetDocument, results: Sequence[Sequence[str] | None]) ->
         results: one entry per calc cell, in order: the lines to record (the result block is
             created after the cell when missing, its body replaced when present), or
             ``None`` to remove the cell's result block.
+
+        only: the positions (in ``results``) of the cells that may need new results, when
+            the caller knows that every other cell already records its entry.
 
     Returns:
         The new document; a new block is fenced with backticks after one empty line.
@@ -216,11 +301,28 @@ def with_results(doc: SheetDocument, results: Sequence[Sequence[str] | None]) ->
     if any(isinstance(lines, str) for lines in results):
         raise DocumentError("each result entry must be a list of lines, not a single string")
     blocks = list(doc.blocks)
-    for index, lines in zip(cells, results, strict=True):
+    changed: dict[int, CalcCell] = {}
+    pairs = (
+        zip(cells, results, strict=True)
+        if only is None
+        else ((cells[position], results[position]) for position in only)
+    )
+    for index, lines in pairs:
         cell = blocks[index]
         assert isinstance(cell, CalcCell)
-        result = None if lines is None else _new_result(lines, cell.result, doc.newline)
-        blocks[index] = replace(cell, result=result)
+        if lines is None:
+            if cell.result is None:
+                continue
+            result = None
+        else:
+            body = _result_body(lines, doc.newline)
+            if cell.result is not None and cell.result.body == body:
+                continue
+            result = _new_result(lines, cell.result, doc.newline)
+        blocks[index] = changed[index] = replace(cell, result=result)
+    fast = _finish_cells(doc, changed)
+    if fast is not None:
+        return fast
     return _finish(replace(doc, blocks=tuple(blocks)))
 
 
@@ -229,8 +331,12 @@ def replace_cell_body(doc: SheetDocument, block_index: int, body: str) -> SheetD
     cell = _block_at(doc, block_index)
     if not isinstance(cell, CalcCell):
         raise DocumentError(f"block {block_index} is a note, not a calc cell")
+    edited = replace(cell, body=with_newlines(body, doc.newline))
+    fast = _finish_cells(doc, {block_index: edited})
+    if fast is not None:
+        return fast
     blocks = list(doc.blocks)
-    blocks[block_index] = replace(cell, body=with_newlines(body, doc.newline))
+    blocks[block_index] = edited
     return _finish(replace(doc, blocks=tuple(blocks)))
 
 

@@ -40,6 +40,27 @@ def _serve(connection: Any) -> None:
             connection.send(("error", f"{type(err).__name__}: {err}"))
 
 
+# What sympy's integrate and solve import on their first call (lazily): imported once in
+# the parent before a fork, so that no later worker (after a budget kill, or the app's
+# next runner) pays for them again. (simplify's own lazy imports are left out: most verb
+# results are monomials, which skip simplify.)
+VERB_MODULES = (
+    "sympy.integrals.manualintegrate",
+    "sympy.integrals.risch",
+    "sympy.integrals.heurisch",
+    "sympy.tensor.tensor",
+    "worksheet.engine.symbolic_ops",
+)
+
+
+def preload_verb_modules() -> None:
+    """Import what the verbs need, in this process (a no-op after the first time)."""
+    import importlib
+
+    for name in VERB_MODULES:
+        importlib.import_module(name)
+
+
 class Worker:
     """One persistent helper process; replaced after a budget kill."""
 
@@ -49,6 +70,7 @@ class Worker:
         self._lock = threading.Lock()
 
     def _start(self) -> None:
+        preload_verb_modules()
         methods = multiprocessing.get_all_start_methods()
         context = multiprocessing.get_context("fork" if "fork" in methods else "spawn")
         parent, child = context.Pipe()

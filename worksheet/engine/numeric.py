@@ -260,6 +260,9 @@ class MpBackend(Backend):
 
 FLOAT = Backend()
 
+# sympy's non-finite numbers are singletons: compared by identity, without sympy's __eq__.
+_NAN, _INFINITY, _MINUS_INFINITY, _ZOO = sympy.nan, sympy.oo, sympy.S.NegativeInfinity, sympy.zoo
+
 
 def evaluate(expr: sympy.Expr, values: Mapping[sympy.Symbol, Any], backend: Backend = FLOAT) -> Any:
     """The number of ``expr`` with each symbol replaced by ``values[symbol]``.
@@ -268,7 +271,9 @@ def evaluate(expr: sympy.Expr, values: Mapping[sympy.Symbol, Any], backend: Back
     >>> evaluate(2 * x**2 + 1, {x: 3.0})
     19.0
     """
-    table = backend.functions()
+    table = backend.__dict__.get("_function_table")
+    if table is None:  # built once per backend: it is the same table every time
+        table = backend._function_table = backend.functions()  # type: ignore[attr-defined]
     cache: dict[sympy.Expr, Any] = {}
 
     def walk(node: sympy.Expr) -> Any:
@@ -280,7 +285,7 @@ def evaluate(expr: sympy.Expr, values: Mapping[sympy.Symbol, Any], backend: Back
             except KeyError:
                 raise MissingValue(node) from None
         elif node.is_Number:
-            if node is sympy.nan or node in (sympy.oo, -sympy.oo, sympy.zoo):
+            if node is _NAN or node is _INFINITY or node is _MINUS_INFINITY or node is _ZOO:
                 spelled = {sympy.oo: "inf", -sympy.oo: "-inf"}.get(node, str(node))
                 raise EvaluationError(f"the result is {spelled} (not a finite number)")
             result = backend.number(node)
@@ -411,6 +416,9 @@ class DualBackend(Backend):
 DUAL = DualBackend()
 
 
+_SPLIT: dict[tuple[sympy.Expr, sympy.Symbol], tuple[sympy.Expr, sympy.Expr]] = {}
+
+
 def evaluate_on_array(
     expr: sympy.Expr, symbol: sympy.Symbol, array: Any, values: Mapping[sympy.Symbol, Any]
 ) -> Any:
@@ -421,7 +429,12 @@ def evaluate_on_array(
     what hand-written numpy with folded constants costs.
     """
     np = numpy_backend().np
-    coefficient, rest = expr.as_independent(symbol, as_Add=False)
+    split = _SPLIT.get((expr, symbol))
+    if split is None:  # the form's structure does not change with the values: kept
+        if len(_SPLIT) >= 1024:
+            _SPLIT.clear()
+        split = _SPLIT[(expr, symbol)] = expr.as_independent(symbol, as_Add=False)
+    coefficient, rest = split
     scale = evaluate(coefficient, values)
     base, power = rest.as_base_exp()
     if base == symbol and power.is_Integer and 0 < abs(int(power)) <= 8:

@@ -2,9 +2,13 @@
 
 from __future__ import annotations
 
+import contextlib
+import gc
 import heapq
+import itertools
+import operator
 import re
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 
 import sympy
@@ -105,6 +109,24 @@ class _Slot:
     binding: Binding | None = None
 
 
+@contextlib.contextmanager
+def _collector_paused() -> Iterator[None]:
+    """No cyclic garbage collection while a whole sheet runs.
+
+    Each statement leaves long-lived results, bindings and sympy objects behind, and every
+    full collection would scan all of them again: on a long sheet that grows with the
+    square of its length. The statements make little cyclic garbage, so the collector
+    waits until the run is over (and is left as it was found).
+    """
+    was_enabled = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was_enabled:
+            gc.enable()
+
+
 class SheetEvaluator:
     """Evaluates a list of statements; re-evaluates only what a change can affect.
 
@@ -116,6 +138,8 @@ class SheetEvaluator:
     def __init__(self, context: Context):
         self.ctx = context
         self._slots: list[_Slot] = []
+        self._sources: list[SourceStatement] = []  # slot sources, for a C-speed comparison
+        self._results: list[StatementResult] = []  # one per slot after a run
         self._parse_cache: dict[tuple[int, str], tuple] = {}
         self._state: _RunState | None = None
         self._imports = ImportScope()
@@ -169,6 +193,10 @@ class SheetEvaluator:
         fast = self._run_changed_only(statements)
         if fast is not None:
             return fast
+        with _collector_paused():
+            return self._run_all(statements)
+
+    def _run_all(self, statements: Sequence[SourceStatement]) -> list[StatementResult]:
         old = {(slot.source.line, slot.source.text): slot for slot in self._slots}
         slots: list[_Slot] = []
         for source in statements:
@@ -224,7 +252,9 @@ class SheetEvaluator:
             for name in slot.uses:
                 users.setdefault(name, []).append(index)
         self._state = _RunState(first_definer, visible, failed, values, users, lookup, evaluator)
-        return [slot.result for slot in slots if slot.result is not None]
+        self._sources = [slot.source for slot in slots]
+        self._results = [slot.result for slot in slots if slot.result is not None]
+        return list(self._results)
 
     def _run_changed_only(self, statements: Sequence[SourceStatement]) -> list | None:
         """Edits that keep every line and every defined name: re-run only the dependents.
@@ -235,8 +265,16 @@ class SheetEvaluator:
         slots = self._slots
         if state is None or len(statements) != len(slots):
             return None
+        if len(self._sources) != len(slots):
+            return None
         changed: list[int] = []
-        for index, (source, slot) in enumerate(zip(statements, slots, strict=True)):
+        # The runner hands unchanged cells' statements back as the same objects: only the
+        # others are looked at (found by identity, at C speed).
+        others = list(
+            itertools.compress(range(len(slots)), map(operator.is_not, statements, self._sources))
+        )
+        for index in others:
+            source, slot = statements[index], slots[index]
             if source.line != slot.source.line or source.cell != slot.source.cell:
                 return None
             if source.text != slot.source.text:
@@ -248,15 +286,19 @@ class SheetEvaluator:
             fresh = _Slot(statements[index], parsed, defines, uses)
             if self._claims_name(fresh) != self._claims_name(slots[index]):
                 return None  # G = 5 became G : [...]: the name's owner changes
+        for index in others:  # same text, line and cell, or changed: keep the new object
+            slots[index].source = statements[index]
         for index in changed:
             parsed, defines, uses = self._parse(statements[index])
             slots[index] = _Slot(statements[index], parsed, defines, uses)
+        self._sources = list(statements)
         users = state.users
         for index in changed:  # the reverse map may gain names the new text reads
             for name in slots[index].uses:
                 if index not in users.setdefault(name, []):
                     users[name].append(index)
                     users[name].sort()
+        one_each = len(self._results) == len(slots)
         pending = list(changed)
         heapq.heapify(pending)
         done: set[int] = set()
@@ -277,6 +319,8 @@ class SheetEvaluator:
                 state.evaluator,
             )
             slot.result, slot.binding = result, binding
+            if one_each:
+                self._results[index] = result
             name = slot.defines
             if name is not None and state.first_definer.get(name) == index:
                 if binding is not None:
@@ -289,6 +333,8 @@ class SheetEvaluator:
                 for user in users.get(name, ()):
                     if user > index and user not in done:
                         heapq.heappush(pending, user)
+        if one_each:
+            return list(self._results)
         return [slot.result for slot in slots if slot.result is not None]
 
     def _evaluate_slot(

@@ -7,6 +7,27 @@ import sympy
 from worksheet.errors import EvaluationError
 
 
+def is_monomial(expr: sympy.Expr) -> bool:
+    """A product of symbols, positive numbers and pi to rational powers: already simplest.
+
+    ``sympy.simplify`` returns such an expression unchanged, after tens of milliseconds
+    (hundreds on its first call in a process), so the verbs skip it there.
+    """
+    factors = expr.args if expr.is_Mul else (expr,)
+    for factor in factors:
+        base, power = factor.as_base_exp()
+        if not power.is_Rational:
+            return False
+        if not (base.is_Symbol or base is sympy.pi or (base.is_Rational and base.is_positive)):
+            return False
+    return True
+
+
+def simplest(expr: sympy.Expr) -> sympy.Expr:
+    """``sympy.simplify(expr)``, skipped where it cannot change anything (a monomial)."""
+    return expr if is_monomial(expr) else sympy.simplify(expr)
+
+
 def simplify(expr: sympy.Expr) -> sympy.Expr:
     return sympy.simplify(expr)
 
@@ -52,7 +73,7 @@ def integrate(
         if condition is not sympy.true:
             raise EvaluationError(f"the integral holds only when {condition}; declare signs")
         result = first
-    return sympy.simplify(result)
+    return simplest(result)
 
 
 def solve(lhs: sympy.Expr, rhs: sympy.Expr, variable: sympy.Symbol) -> list[sympy.Expr] | None:
@@ -63,7 +84,7 @@ def solve(lhs: sympy.Expr, rhs: sympy.Expr, variable: sympy.Symbol) -> list[symp
     except NotImplementedError:
         return None
     return [
-        exponents_out_of_logs(sympy.simplify(root)) for root in roots if root.is_real is not False
+        exponents_out_of_logs(simplest(root)) for root in roots if root.is_real is not False
     ]
 
 
@@ -105,13 +126,14 @@ def dsolve(
     initial: sympy.Expr,
 ) -> sympy.Expr:
     """Solve the ODE ``lhs == rhs`` for ``function`` (of ``variable``) with f(start) = initial."""
-    equation = sympy.Eq(lhs, rhs)
-    solutions = sympy.dsolve(equation, function, ics={function.subs(variable, start): initial})
-    if not isinstance(solutions, list):
-        solutions = [solutions]
+    values = _separable_solutions(lhs, rhs, function, variable, start, initial)
+    if values is None:
+        equation = sympy.Eq(lhs, rhs)
+        found = sympy.dsolve(equation, function, ics={function.subs(variable, start): initial})
+        values = [solution.rhs for solution in (found if isinstance(found, list) else [found])]
     candidates = []
-    for solution in solutions:
-        value = sympy.simplify(solution.rhs)
+    for found_value in values:
+        value = simplest(found_value)
         check = sympy.simplify(value.subs(variable, start) - initial)
         if check == 0 and value.is_real is not False:
             candidates.append(value)
@@ -122,6 +144,37 @@ def dsolve(
         shown = ", ".join(str(c) for c in candidates) or "none"
         raise EvaluationError(f"expected one real solution, found {len(candidates)}: {shown}")
     return candidates[0]
+
+
+def _separable_solutions(
+    lhs: sympy.Expr,
+    rhs: sympy.Expr,
+    function: sympy.Expr,
+    variable: sympy.Symbol,
+    start: sympy.Expr,
+    initial: sympy.Expr,
+) -> list[sympy.Expr] | None:
+    """Roots of ``int dM/F(M) from M0 to M == t - t0`` for an autonomous dM/dt = F(M).
+
+    sympy's ``dsolve`` classifies the equation against every hint it knows before it
+    solves (about a second even for dM/dt = -a/M^2); an autonomous first-order equation,
+    the usual mass-loss law, is one integral and one solve. None when the equation is not
+    of that form or the integral has no closed form, so that ``dsolve`` decides. (Equations
+    with t on the right are left to ``dsolve``, whose closed forms can be written
+    differently.)
+    """
+    if lhs != sympy.Derivative(function, variable):
+        return None
+    unknown = sympy.Dummy("M")
+    slope = rhs.subs(function, unknown)
+    if slope.has(sympy.Derivative, function, variable) or not slope.has(unknown):
+        return None
+    mass = sympy.Dummy("m")
+    elapsed = sympy.integrate(1 / slope.subs(unknown, mass), (mass, initial, unknown))
+    if elapsed.has(sympy.Integral, sympy.Piecewise):
+        return None
+    roots = sympy.solve(sympy.Eq(elapsed, variable - start), unknown, dict=False)
+    return list(roots) or None
 
 
 def is_zero(expr: sympy.Expr) -> bool | None:
@@ -145,5 +198,14 @@ def decide_order(lhs: sympy.Expr, rhs: sympy.Expr, op: str) -> bool | None:
 
 
 def log_slope(expr: sympy.Expr, variable: sympy.Symbol) -> sympy.Expr:
-    """d ln f / d ln x: a constant exactly when f is a power law in x."""
+    """d ln f / d ln x: a constant exactly when f is a power law in x.
+
+    For a monomial it is the exponent of x, read off without simplify.
+    """
+    if is_monomial(expr):
+        return sympy.Add(*(power for base, power in _factors(expr) if base == variable))
     return sympy.simplify(variable * sympy.diff(expr, variable) / expr)
+
+
+def _factors(expr: sympy.Expr) -> list[tuple[sympy.Expr, sympy.Expr]]:
+    return [factor.as_base_exp() for factor in (expr.args if expr.is_Mul else (expr,))]

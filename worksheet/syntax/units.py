@@ -145,10 +145,22 @@ class _UnitParser:
         return result
 
 
+# Parsed bracket texts: a sheet writes the same few units again and again, and a parsed
+# unit holds no position (errors, which do, are not kept).
+_PARSED: dict[str, UnitExpr] = {}
+_PARSED_LIMIT = 4096
+
+
 def parse_unit(text: str, line: int = 1, column: int = 1) -> UnitExpr:
     """Parse bracket contents into a product of named units to exact powers.
 
     >>> parse_unit("m^3/(kg*s^2)").factors
     (('m', Fraction(3, 1)), ('kg', Fraction(-1, 1)), ('s', Fraction(-2, 1)))
     """
-    return _UnitParser(text, line, column).parse()
+    parsed = _PARSED.get(text)
+    if parsed is None:
+        parsed = _UnitParser(text, line, column).parse()
+        if len(_PARSED) >= _PARSED_LIMIT:
+            _PARSED.clear()
+        _PARSED[text] = parsed
+    return parsed

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
 
@@ -20,11 +21,33 @@ PINT_BASES = (
 _ZERO = (Fraction(0),) * 7
 
 
+# Products, quotients and powers already worked out: a sheet combines the same few
+# dimensions over and over, and Fraction arithmetic is slow next to a dict look-up.
+_DONE: dict[tuple[object, ...], Dimension] = {}
+_DONE_LIMIT = 8192
+
+
 @dataclass(frozen=True)
 class Dimension:
     """A product of base dimensions to exact powers; arithmetic mirrors the quantities'."""
 
     exponents: tuple[Fraction, ...] = _ZERO
+
+    def __hash__(self) -> int:
+        # Kept on the instance: hashing seven Fractions each time costs microseconds.
+        cached = self.__dict__.get("_hash")
+        if cached is None:
+            cached = hash(self.exponents)
+            object.__setattr__(self, "_hash", cached)
+        return cached
+
+    def _remembered(self, key: tuple[object, ...], exponents: Callable[[], tuple]) -> Dimension:
+        found = _DONE.get(key)
+        if found is None:
+            if len(_DONE) >= _DONE_LIMIT:
+                _DONE.clear()
+            found = _DONE[key] = Dimension(exponents())
+        return found
 
     @classmethod
     def of(cls, **powers: int | Fraction) -> Dimension:
@@ -36,13 +59,21 @@ class Dimension:
         return cls(tuple(Fraction(powers.get(key, 0)) for key in keys))
 
     def __mul__(self, other: Dimension) -> Dimension:
-        return Dimension(tuple(a + b for a, b in zip(self.exponents, other.exponents, strict=True)))
+        return self._remembered(
+            ("*", self, other),
+            lambda: tuple(a + b for a, b in zip(self.exponents, other.exponents, strict=True)),
+        )
 
     def __truediv__(self, other: Dimension) -> Dimension:
-        return Dimension(tuple(a - b for a, b in zip(self.exponents, other.exponents, strict=True)))
+        return self._remembered(
+            ("/", self, other),
+            lambda: tuple(a - b for a, b in zip(self.exponents, other.exponents, strict=True)),
+        )
 
     def __pow__(self, power: Fraction | int) -> Dimension:
-        return Dimension(tuple(a * Fraction(power) for a in self.exponents))
+        return self._remembered(
+            ("^", self, power), lambda: tuple(a * Fraction(power) for a in self.exponents)
+        )
 
     @property
     def dimensionless(self) -> bool:
@@ -54,10 +85,7 @@ class Dimension:
         >>> Dimension.of(mass=1, length=2, time=-2).si_unit()
         'J'
         """
-        named = _NAMED.get(self.exponents)
-        if named:
-            return named[1]
-        return compose_base_units(self.exponents)
+        return self._words()[1]
 
     def name(self) -> str:
         """A physicist's word for the dimension, or its base-unit form when it has none.
@@ -65,10 +93,20 @@ class Dimension:
         >>> Dimension.of(length=1).name()
         'length'
         """
-        named = _NAMED.get(self.exponents)
-        if named:
-            return named[0]
-        return f"dimension {compose_base_units(self.exponents)}"
+        return self._words()[0]
+
+    def _words(self) -> tuple[str, str]:
+        """(name, SI unit), worked out once per instance."""
+        cached = self.__dict__.get("_words_cache")
+        if cached is None:
+            named = _NAMED.get(self.exponents)
+            if named:
+                cached = named
+            else:
+                units = compose_base_units(self.exponents)
+                cached = (f"dimension {units}", units)
+            object.__setattr__(self, "_words_cache", cached)
+        return cached
 
     def __str__(self) -> str:
         return self.name()

@@ -1,8 +1,10 @@
 """The one unit registry of a process: pint's unit names plus the pinned astronomical units.
 
 Bracket text is parsed by our own grammar (``worksheet.syntax.units``); pint is asked only
-about single unit names, so hostile text never reaches its parser. The pint registry is
-built in-process on first use (no disk cache: pint's cache is pickle).
+about single unit names, so hostile text never reaches its parser. Names fixed by
+definition (SI units, their prefixes, eV, erg, ...: ``si_names``) are answered without pint;
+the pint registry is built in-process only for other names (no disk cache: pint's cache is
+pickle).
 """
 
 from __future__ import annotations
@@ -18,6 +20,7 @@ from worksheet.errors import DimensionError, ParseError
 from worksheet.syntax.tree import UnitExpr
 from worksheet.syntax.units import parse_unit
 from worksheet.units.dimension import PINT_BASES, Dimension
+from worksheet.units.si_names import SI_NAMES
 
 if TYPE_CHECKING:
     from worksheet.constants import Dataset
@@ -98,6 +101,14 @@ class UnitRegistry:
         prefixed = self._prefixed_dataset_unit(name)
         if prefixed is not None:
             return prefixed
+        known = SI_NAMES.get(name)
+        if known is not None:
+            # Fixed by definition: the answer pint would give, without building pint.
+            return ResolvedUnit(name, _clean(float(known[0])), known[1], origin="SI")
+        return self._resolve_with_pint(name)
+
+    def _resolve_with_pint(self, name: str) -> ResolvedUnit:
+        """A name neither the dataset nor the SI table knows, as pint defines it."""
         ureg = self._pint_registry()
         import pint
 
