@@ -145,15 +145,33 @@ def _summary_lines(path_text: str, results) -> list[str]:
     return lines
 
 
-def _run(args: argparse.Namespace) -> int:
+def _check_output_folder(target: str) -> None:
+    """Refuse a missing ``-o`` folder before the sheet is run, not after (exit 2)."""
+    folder = os.path.dirname(os.path.abspath(target))
+    if not os.path.isdir(folder):
+        raise UsageError(
+            f"{target}: the folder {os.path.dirname(target) or folder} does not exist; "
+            "nothing was written (create it first, or give another path)"
+        )
+
+
+def _save(target: str, text: str) -> None:
+    """Write ``target`` atomically; a failed save is exit 2 with what happened, never 1."""
     from worksheet.document import atomic_write_text
 
-    run = _run_document(args.file)
-    target = args.output or args.file
     try:
-        atomic_write_text(target, run.text)
+        atomic_write_text(target, text)
+    except WorksheetError as err:  # full disk, read-only, no permission, missing folder
+        raise UsageError(err.located()) from err
     except OSError as err:
-        raise UsageError(f"{target}: cannot write ({err.strerror})") from err
+        raise UsageError(f"cannot save {target}: {err.strerror or err}") from err
+
+
+def _run(args: argparse.Namespace) -> int:
+    target = args.output or args.file
+    _check_output_folder(target)
+    run = _run_document(args.file)
+    _save(target, run.text)
     for warning in run.settings.warnings:
         print(f"{args.file}: warning: {warning}", file=sys.stderr)
     problems = _summary_lines(args.file, run.results)
@@ -267,9 +285,10 @@ def _open(args: argparse.Namespace) -> int:
 
 
 def _export(args: argparse.Namespace) -> int:
-    from worksheet.document import atomic_write_text
     from worksheet.export import PLOT_FORMATS, export_run, plot_files
 
+    if args.output and args.to not in PLOT_FORMATS:
+        _check_output_folder(args.output)
     run = _run_document(args.file)
     stem = str(Path(args.file).with_suffix(""))
     if args.to in PLOT_FORMATS:
@@ -296,6 +315,6 @@ def _export(args: argparse.Namespace) -> int:
     except WorksheetError as err:
         raise UsageError(f"{args.file}: {err.located()}") from err
     target = args.output or stem + suffix
-    atomic_write_text(target, text)
+    _save(target, text)
     print(f"wrote {target}")
     return 0

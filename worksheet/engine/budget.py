@@ -39,6 +39,9 @@ TIMER_GRACE_SECONDS = 0.2
 """The interval timer fires this much after the statement's budget, so that a verb waited on
 when the budget ends is stopped (and named in the message) by its own deadline first."""
 
+TIMER_REPEAT_SECONDS = 0.25
+"""After the first alarm, the timer fires again this often until the statement has ended."""
+
 PARENT_POLL_SECONDS = 0.5
 """How often the worker's watchdog asks whether the process that started it is still there."""
 
@@ -48,12 +51,17 @@ _PR_SET_PDEATHSIG = 1  # from <linux/prctl.h>
 _deadline = threading.local()
 
 
-def _time_left(seconds: float) -> float:
-    """``seconds``, or less when the statement under way has less of its budget left."""
+def _time_left(seconds: float) -> tuple[float, float]:
+    """The time a verb may take and the budget to name if it runs out.
+
+    ``seconds``, or less when the statement under way has less of its budget left (then
+    the statement's budget is the one named).
+    """
     deadline = getattr(_deadline, "at", None)
     if deadline is None:
-        return seconds
-    return min(seconds, deadline - time.monotonic())
+        return seconds, seconds
+    left = deadline - time.monotonic()
+    return (seconds, seconds) if seconds <= left else (left, _deadline.seconds)
 
 
 def _over_budget(what: str, seconds: float) -> BudgetError:
@@ -218,13 +226,15 @@ class Worker:
             raise
 
     def _stop(self) -> None:
-        if self._process is not None:
-            with contextlib.suppress(OSError, ValueError, AttributeError):
-                self._process.kill()
-            self._process.join(timeout=2)
-            with contextlib.suppress(OSError):
-                self._connection.close()
+        # Forget the process first: an alarm landing in here must not leave it half-stopped.
+        process, connection = self._process, self._connection
         self._process = self._connection = None
+        if process is not None:
+            with contextlib.suppress(OSError, ValueError, AttributeError):
+                process.kill()
+            with contextlib.suppress(OSError):
+                connection.close()
+            process.join(timeout=2)
 
     def _stopped(self, what: str) -> WorksheetError:
         """The error for a worker that ended while answering, with its cause if known."""
@@ -237,14 +247,16 @@ class Worker:
             return BudgetError(_memory_message(what, self.memory_limit))
         return EvaluationError(f"{what} failed: the worker process stopped")
 
-    def _await(self, serial: int, seconds: float, what: str) -> tuple[str, Any]:
+    def _await(
+        self, serial: int, seconds: float, what: str, budget: float | None = None
+    ) -> tuple[str, Any]:
         """The reply to request ``serial``; replies to earlier requests are dropped."""
         deadline = time.monotonic() + seconds
         while True:
             remaining = deadline - time.monotonic()
             try:
                 if remaining <= 0 or not self._connection.poll(remaining):
-                    raise _over_budget(what, seconds)
+                    raise _over_budget(what, seconds if budget is None else budget)
                 number, status, payload = self._connection.recv()
             except (OSError, EOFError) as err:
                 raise self._stopped(what) from err
@@ -259,15 +271,15 @@ class Worker:
         ``seconds`` is cut to what the statement under way (``statement_timer``) has left.
         """
         with self._lock:
-            allowed = _time_left(seconds)
+            allowed, budget = _time_left(seconds)
             if allowed <= 0:
-                raise _over_budget(what, seconds)
+                raise _over_budget(what, budget)
             if self._process is None or not self._process.is_alive():
                 self._start()
             self._serial += 1
             try:
                 self._connection.send((self._serial, function, args))
-                status, payload = self._await(self._serial, allowed, what)
+                status, payload = self._await(self._serial, allowed, what, budget)
             except BaseException:
                 # Timer, Ctrl-C, budget, a dead pipe: the worker may still be busy with this
                 # request, and its late answer must never reach the next one.
@@ -306,9 +318,9 @@ def statement_timer(seconds: float) -> Iterator[None]:
     Verbs called inside share what is left of it (in any thread). In the main thread an
     interval timer also interrupts pure-Python work when it runs out.
     """
-    previous_deadline = getattr(_deadline, "at", None)
+    previous_deadline = getattr(_deadline, "at", None), getattr(_deadline, "seconds", None)
     if seconds > 0:
-        _deadline.at = time.monotonic() + seconds
+        _deadline.at, _deadline.seconds = time.monotonic() + seconds, seconds
     try:
         if (
             threading.current_thread() is not threading.main_thread()
@@ -318,18 +330,26 @@ def statement_timer(seconds: float) -> Iterator[None]:
             yield
             return
 
+        armed = [True]
+
         def expire(signum: int, frame: Any) -> None:
-            raise BudgetError(
-                f"the statement ran past its time budget of {seconds:g} s and was stopped "
-                f"{_RAISE_HINT}"
-            )
+            if armed[0]:
+                raise BudgetError(
+                    f"the statement ran past its time budget of {seconds:g} s and was stopped "
+                    f"{_RAISE_HINT}"
+                )
 
         previous = signal.signal(signal.SIGALRM, expire)
-        signal.setitimer(signal.ITIMER_REAL, seconds + TIMER_GRACE_SECONDS)
+        # The timer repeats: an exception raised inside a garbage-collector callback or a
+        # __del__ is swallowed by Python, and one swallowed alarm must not free the statement.
+        signal.setitimer(signal.ITIMER_REAL, seconds + TIMER_GRACE_SECONDS, TIMER_REPEAT_SECONDS)
         try:
             yield
         finally:
-            signal.setitimer(signal.ITIMER_REAL, 0)
-            signal.signal(signal.SIGALRM, previous)
+            try:
+                armed[0] = False
+            finally:  # reached even when an alarm lands on the line above
+                signal.setitimer(signal.ITIMER_REAL, 0)
+                signal.signal(signal.SIGALRM, previous)
     finally:
-        _deadline.at = previous_deadline
+        _deadline.at, _deadline.seconds = previous_deadline
