@@ -112,9 +112,7 @@ def test_issue11_replies_to_other_requests_are_dropped() -> None:
 
 def test_issue11_issue_reproduction_later_verbs_get_their_own_answers(short_ctx) -> None:
     terms = " + ".join(f"integrate(y^{k}*exp(y), y)" for k in range(14, 24))
-    body = (
-        f"y : [1]\nq1 = {terms}\nq2 = expand(y + 1)\nq3 = factor(y^2 - 1)\nq4 = diff(y^3, y)\n"
-    )
+    body = f"y : [1]\nq1 = {terms}\nq2 = expand(y + 1)\nq3 = factor(y^2 - 1)\nq4 = diff(y^3, y)\n"
     results = {r.name: r for r in SheetEvaluator(short_ctx).run(split_statements(body, 1))}
     assert results["q1"].status == "error"
     assert "time budget of 1 s" in results["q1"].message
