@@ -177,6 +177,18 @@ def test_issue11_seen_crashes_that_have_a_value(ctx) -> None:
     assert results[1].to_json()["symbolic"] == "1e4301"
 
 
+@pytest.mark.parametrize(
+    "statement", ["--10 [M_sun^7] in planck", "-simplify(simplify(04659e281 [kg])) in planck"]
+)
+def test_issue11_fuzz_found_planck_uncertainty_overflow(ctx, statement: str) -> None:
+    # Found by benchmarks/fuzz_statements.py: the squares of the Planck view's G terms
+    # overflowed. The value's relative uncertainty is that of the mass unit's G-dependence.
+    result = calculate(ctx, statement)
+    assert result.status == "ok", result.message
+    u = result.to_json()["uncertainty"]
+    assert math.isfinite(u) and 0 < u < abs(result.value)
+
+
 def test_issue11_an_unexpected_exception_is_that_statement_s_error(ctx, monkeypatch) -> None:
     real = StatementEvaluator.evaluate
 

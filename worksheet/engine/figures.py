@@ -279,6 +279,5 @@ def in_unit_uncertainty(
     shifted = dict(gradient)
     # d(si / F)/dG * F = d si/dG - si * d ln F/dG, with d ln F/dG = k / G.
     shifted["G"] = shifted.get("G", 0.0) - si * float(g_power) / g.value
-    total = math.fsum((d * input_uncertainty(key)) ** 2 for key, d in shifted.items())
-    result = math.sqrt(total)
+    result = math.hypot(*(d * input_uncertainty(key) for key, d in shifted.items()))
     return None if result <= ROUNDING_FLOOR * abs(si) else result

@@ -39,7 +39,12 @@ def split_statements(body: str, first_line: int, cell: int = 0) -> list[SourceSt
     pending: list[str] = []
     start = first_line
     depth = 0
-    for offset, raw in enumerate(body.splitlines()):
+    # Only \n, \r\n and a bare \r end a line, as in the document model: str.splitlines
+    # would also break at form feeds and Unicode separators and shift every line number.
+    lines = _LINE_END.split(body)
+    if lines and lines[-1] == "":
+        lines.pop()
+    for offset, raw in enumerate(lines):
         if not pending:
             start = first_line + offset
         pending.append(raw)
@@ -52,6 +57,7 @@ def split_statements(body: str, first_line: int, cell: int = 0) -> list[SourceSt
     return statements
 
 
+_LINE_END = re.compile(r"\r\n|\n|\r")
 _DEFINED_NAME = re.compile(r"\s*([^\W\d]\w*)\s*(?:=(?!=)|:)")
 
 
