@@ -4,9 +4,13 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import pytest
+
 from worksheet import cli
 from worksheet.document import parse_document, read_document
 from worksheet.engine import SheetEvaluator, make_context, split_statements
+from worksheet.errors import DocumentError
+from worksheet.runner import SheetRunner
 
 CR_SHEET = (
     "---\rtitle: Old editor\rconstants: CODATA2022\r---\r\rA note written\ron a classic editor.\r\r"
@@ -58,3 +62,11 @@ def test_issue11_only_real_line_ends_split_statements() -> None:
         (4, "ok"),
     ]
     assert results[0].message == "line 1, col 6: unexpected character '\\x0c'"
+
+
+@pytest.mark.parametrize("entry", ["digits: ٣", "budget: ٣", "budget: ¹"])
+def test_issue11_front_matter_numbers_take_ascii_digits_only(tmp_path: Path, entry: str) -> None:
+    path = tmp_path / "digits.sheet.md"
+    path.write_text(f"---\n{entry}\n---\n\n```calc\nx = 1 [m]\n```\n", encoding="utf-8")
+    with pytest.raises(DocumentError, match="is not a"):
+        SheetRunner().run(read_document(path))

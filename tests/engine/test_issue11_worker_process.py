@@ -179,3 +179,33 @@ def test_issue11_an_alarm_swallowed_once_still_stops_the_statement() -> None:
                 swallowed += 1
     assert swallowed == 1
     assert time.monotonic() - started < 2
+
+
+@linux_only
+def test_issue11_ctrl_c_stops_run_and_worker_without_a_traceback(tmp_path: Path) -> None:
+    sheet = tmp_path / "long.sheet.md"
+    sheet.write_text(
+        "---\nconstants: CODATA2022\nbudget: 120\n---\n\n"
+        f"```calc\nx : [1]\ny : [1]\n{SLOW_VERB}\n```\n",
+        encoding="utf-8",
+    )
+    run = subprocess.Popen(
+        [sys.executable, "-m", "worksheet", "run", str(sheet)],
+        stdout=subprocess.DEVNULL,
+        stderr=subprocess.PIPE,
+        text=True,
+        start_new_session=True,  # its own process group, as a terminal gives it
+    )
+    try:
+        assert _wait_for(lambda: _children(run.pid), 60), "the worker never started"
+        (worker,) = _children(run.pid)
+        time.sleep(0.5)
+        os.killpg(run.pid, signal.SIGINT)  # what Ctrl-C sends: the whole group
+        _, err = run.communicate(timeout=20)
+        assert run.returncode == 130
+        assert err.strip() == "worksheet: interrupted"  # no worker traceback
+        assert _wait_for(lambda: not _running(worker), 5)
+    finally:
+        if run.poll() is None:
+            run.kill()
+            run.wait()

@@ -156,6 +156,10 @@ def _serve(
     """Worker loop: receive (serial, function, args), send back (serial, status, payload)."""
     with contextlib.suppress(OSError):
         inherited.close()  # the parent's end, copied by fork: keep it from holding the pipe
+    # Ctrl-C reaches the whole process group; the parent handles it and stops the worker,
+    # which must not die on its own with a traceback of its own.
+    with contextlib.suppress(ValueError, OSError):
+        signal.signal(signal.SIGINT, signal.SIG_IGN)
     _die_with_parent(parent_pid, use_death_signal)
     limit = _cap_memory(memory_bytes)
     connection.send((0, "ready", limit))
