@@ -170,3 +170,30 @@ def problems(results: list, statement_line: int = 5) -> list[str]:
     if not absorbed and (last is None or last.line != statement_line + 1 or last.status != "ok"):
         found.append(f"the line after the statement did not evaluate: {results[-1:]}")
     return found
+
+
+_DOCUMENT_LINES = [
+    "---",
+    "title: Fuzzed",
+    "constants: CODATA2022",
+    "digits: 3",
+    "budget: 0.5",
+    "budget: ٣",
+    "```calc",
+    "```result",
+    "```",
+    "~~~",
+    "````calc",
+    "   ```calc",
+    "Some prose about the fictional Kestrel Ridge array.",
+    "",
+    "\ufeff",
+    "M = 5e11 [kg]",
+    "r_s = 2*G*M/c^2",
+    "x = (1 +",
+]
+DOCUMENTS = st.tuples(
+    st.lists(st.one_of(st.sampled_from(_DOCUMENT_LINES), STATEMENTS), max_size=14),
+    st.lists(st.sampled_from(["\n", "\r\n", "\r"]), min_size=1, max_size=14),
+).map(lambda p: "".join(line + p[1][k % len(p[1])] for k, line in enumerate(p[0])))
+"""A random sheet file: front matter, fences and statements with mixed line ends."""

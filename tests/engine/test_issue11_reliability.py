@@ -15,11 +15,13 @@ import pytest
 from hypothesis import HealthCheck, example, given, settings
 
 from worksheet import cli
+from worksheet.document import NoteBlock, parse_document
 from worksheet.engine import Context, SheetEvaluator, calculate, make_context, split_statements
 from worksheet.engine import sheet as sheet_module
 from worksheet.engine.budget import Worker, statement_timer
 from worksheet.engine.statements import StatementEvaluator
-from worksheet.errors import BudgetError
+from worksheet.errors import BudgetError, DocumentError, WorksheetError
+from worksheet.runner import SheetRunner
 
 _spec = importlib.util.spec_from_file_location(
     "statement_grammar", Path(__file__).with_name("statement_grammar.py")
@@ -35,6 +37,13 @@ def short_ctx() -> Iterator[Context]:
     context = make_context("CODATA2022", digits=4, seconds=1.0)
     yield context
     context.worker.close()
+
+
+@pytest.fixture(scope="module")
+def doc_runner() -> Iterator[SheetRunner]:
+    runner = SheetRunner()
+    yield runner
+    runner.close()
 
 
 class _Interrupted(Exception):
@@ -258,3 +267,31 @@ def test_issue11_calc_reports_a_hostile_expression(expression: str, capsys) -> N
     err = capsys.readouterr().err
     assert err.startswith("error: line 1, col ")
     assert "Traceback" not in err
+
+
+@settings(
+    max_examples=40,
+    deadline=None,
+    derandomize=True,
+    database=None,
+    suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow],
+)
+@given(text=grammar.DOCUMENTS)
+@example(text="---\rbudget: 1\r---\r```calc\rx = 1 [m]\r```\r")
+def test_issue11_fuzzed_documents_run_or_are_refused_clearly(doc_runner, text: str) -> None:
+    # A whole document: refused with a located DocumentError, or run; a run's text reads
+    # back and runs again to the same bytes, with every note kept.
+    try:
+        doc = parse_document(text)
+    except DocumentError as err:
+        assert err.message
+        return
+    try:
+        run = doc_runner.run(doc)
+    except WorksheetError as err:
+        assert err.message
+        return
+    again = doc_runner.run(parse_document(run.text))
+    assert again.text == run.text
+    notes = [b.text for b in doc.blocks if isinstance(b, NoteBlock)]
+    assert [b.text for b in run.document.blocks if isinstance(b, NoteBlock)] == notes
