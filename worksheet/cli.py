@@ -155,12 +155,13 @@ def _check_output_folder(target: str) -> None:
         )
 
 
-def _save(target: str, text: str) -> None:
+def _save(target: str, content: str | bytes) -> None:
     """Write ``target`` atomically; a failed save is exit 2 with what happened, never 1."""
-    from worksheet.document import atomic_write_text
+    from worksheet.document import atomic_write_bytes
 
+    data = content.encode("utf-8") if isinstance(content, str) else content
     try:
-        atomic_write_text(target, text)
+        atomic_write_bytes(target, data)
     except WorksheetError as err:  # full disk, read-only, no permission, missing folder
         raise UsageError(err.located()) from err
     except OSError as err:
@@ -304,10 +305,7 @@ def _export(args: argparse.Namespace) -> int:
             return 0
         for item in files:
             target = folder / item.name
-            try:
-                target.write_bytes(item.content)
-            except OSError as err:
-                raise UsageError(f"{target}: cannot write ({err.strerror})") from err
+            _save(str(target), item.content)
             print(f"wrote {target}")
         return 0
     try:

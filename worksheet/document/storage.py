@@ -112,6 +112,14 @@ def _refuse_target(path: str | os.PathLike[str], target: str, folder: str) -> No
 def atomic_write_text(path: str | os.PathLike[str], text: str) -> None:
     """Replace the file at ``path`` with exactly ``text.encode("utf-8")``.
 
+    See ``atomic_write_bytes``, which does the work.
+    """
+    atomic_write_bytes(path, text.encode("utf-8"))
+
+
+def atomic_write_bytes(path: str | os.PathLike[str], data: bytes) -> None:
+    """Replace the file at ``path`` with exactly ``data``.
+
     The bytes go to a temporary file in the same folder, which is flushed, fsynced, given
     the old file's permission bits (or the umask default for a new file) and then renamed
     over the target, so readers see either the old file or the new one, never a part. A
@@ -128,7 +136,6 @@ def atomic_write_text(path: str | os.PathLike[str], text: str) -> None:
     target = os.path.realpath(os.fspath(path))
     folder = os.path.dirname(target)
     _refuse_target(path, target, folder)
-    data = text.encode("utf-8")
     existed = True
     try:
         mode = stat.S_IMODE(os.stat(target).st_mode)
