@@ -6,6 +6,7 @@ import importlib.util
 import json
 import math
 import operator
+import os
 import signal
 import time
 from collections.abc import Iterator
@@ -295,3 +296,19 @@ def test_issue11_fuzzed_documents_run_or_are_refused_clearly(doc_runner, text: s
     assert again.text == run.text
     notes = [b.text for b in doc.blocks if isinstance(b, NoteBlock)]
     assert [b.text for b in run.document.blocks if isinstance(b, NoteBlock)] == notes
+
+
+def test_issue11_a_worker_that_died_between_calls_is_replaced() -> None:
+    worker = Worker()
+    try:
+        assert worker.call(operator.add, (1, 1), 10.0, "add") == 2
+        first = worker.pid
+        assert first is not None
+        os.kill(first, signal.SIGKILL)
+        deadline = time.monotonic() + 5
+        while worker._process.is_alive() and time.monotonic() < deadline:
+            time.sleep(0.01)
+        assert worker.call(operator.add, (2, 2), 10.0, "add") == 4
+        assert worker.pid != first
+    finally:
+        worker.close()

@@ -282,7 +282,10 @@ class Worker:
                 self._start()
             self._serial += 1
             try:
-                self._connection.send((self._serial, function, args))
+                try:
+                    self._connection.send((self._serial, function, args))
+                except (OSError, EOFError) as err:  # it died between the check and now
+                    raise self._stopped(what) from err
                 status, payload = self._await(self._serial, allowed, what, budget)
             except BaseException:
                 # Timer, Ctrl-C, budget, a dead pipe: the worker may still be busy with this
