@@ -312,3 +312,11 @@ def test_issue11_a_worker_that_died_between_calls_is_replaced() -> None:
         assert worker.pid != first
     finally:
         worker.close()
+
+
+def test_issue11_superscript_two_after_a_name_is_a_power(run_sheet) -> None:
+    # '²' used to be taken as a digit inside a name ('r²' an unknown name); it is the ^2
+    # alias wherever it stands, like after a number.
+    results = run_sheet("r = 3 [m]\nA = r²\n")
+    assert results[1].status == "ok", results[1].message
+    assert results[1].record == "A = 9.000 m^2"
