@@ -111,8 +111,11 @@ def test_add_move_and_edit_note(basic_sheet: Path, ui) -> None:
 
 def test_blank_notes_are_hidden_and_out_of_the_tab_order(tmp_path: Path, ui) -> None:
     path = tmp_path / "two.sheet.md"  # two calc cells with only a blank line between
-    path.write_text("---\ntitle: two\nconstants: CODATA2018\n---\n\n```calc\na = 1 [m]\n```"
-                    "\n\n```calc\nb = 2*a\n```\n", encoding="utf-8")
+    path.write_text(
+        "---\ntitle: two\nconstants: CODATA2018\n---\n\n```calc\na = 1 [m]\n```"
+        "\n\n```calc\nb = 2*a\n```\n",
+        encoding="utf-8",
+    )
     app = WorksheetApp(str(path))
 
     async def scenario(pilot, app: WorksheetApp) -> None:

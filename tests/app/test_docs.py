@@ -12,8 +12,11 @@ DOCS = Path(__file__).resolve().parents[2] / "docs"
 
 def test_the_doc_lists_every_key() -> None:
     text = (DOCS / "app.md").read_text(encoding="utf-8")
-    rows = {line.split("|")[1].strip().strip("`"): line.split("|")[2].strip()
-            for line in text.splitlines() if line.startswith("| `")}
+    rows = {
+        line.split("|")[1].strip().strip("`"): line.split("|")[2].strip()
+        for line in text.splitlines()
+        if line.startswith("| `")
+    }
     for key in KEY_ACTIONS:
         assert rows.get(key.key) == key.description, key.key
     for key, description in EXTRA_KEYS:

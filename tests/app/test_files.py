@@ -24,8 +24,10 @@ def test_recovery_copy_is_kept_while_unsaved_and_removed_on_save(basic_sheet: Pa
         editor.move_cursor((0, len(editor.document.lines[0])))
         await pilot.press(*" * 2")
         # The copy follows the edits: the last one reaches it within a few intervals.
-        await ui.wait_for(pilot, lambda: copy.exists()
-                          and "A = 4*pi*r_s^2 * 2\n" in copy.read_text(encoding="utf-8"))
+        await ui.wait_for(
+            pilot,
+            lambda: copy.exists() and "A = 4*pi*r_s^2 * 2\n" in copy.read_text(encoding="utf-8"),
+        )
         await pilot.press("ctrl+s")
         await ui.wait_for(pilot, lambda: not app.session.dirty)
         await pilot.pause(0.4)

@@ -73,8 +73,12 @@ def test_session_typing_coalesces_and_undo_restores(tmp_path: Path) -> None:
 def test_session_cell_operations(tmp_path: Path) -> None:
     session = _session(tmp_path)  # blocks: the blank line, the calc cell, the note
     session.add_calc(3, "c = 3 [s]")
-    assert [type(b).__name__ for b in session.doc.blocks] == ["NoteBlock", "CalcCell",
-                                                               "NoteBlock", "CalcCell"]
+    assert [type(b).__name__ for b in session.doc.blocks] == [
+        "NoteBlock",
+        "CalcCell",
+        "NoteBlock",
+        "CalcCell",
+    ]
     session.move(3, -1)
     assert session.doc.blocks[2].body == "c = 3 [s]\n"
     session.delete(2)
@@ -133,8 +137,7 @@ def test_a_broken_front_matter_is_a_message_not_a_crash() -> None:
 def test_importing_the_app_package_does_not_load_textual() -> None:
     # The command line imports worksheet.app only for `open`; launch imports textual late.
     code = "import sys, worksheet.app; print('textual' in sys.modules)"
-    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                          check=True)
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert done.stdout.strip() == "False"
 
 

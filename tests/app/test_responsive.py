@@ -52,7 +52,8 @@ def test_budget_overrun_keeps_keys_working(tmp_path: Path, ui) -> None:
 
 
 SLOW_TWICE = SLOW_SHEET.replace("budget: 0.5", "budget: 3").replace(
-    "y = integrate(", "k = 1\ny = k*integrate(")
+    "y = integrate(", "k = 1\ny = k*integrate("
+)
 
 
 def test_an_edit_does_not_wait_for_a_slow_run(tmp_path: Path, ui) -> None:

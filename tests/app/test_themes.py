@@ -23,15 +23,16 @@ def test_shipped_themes_load_without_problems() -> None:
     assert sorted(theme.name for theme in loaded.themes) == sorted(BUILT_IN)
     for theme in loaded.themes:
         assert {"result-ok", "result-failed", "result-error", "result-stale"} <= set(
-            theme.variables)
+            theme.variables
+        )
 
 
 def test_stylesheet_uses_no_literal_colours() -> None:
     # STYLE habit 5: colours only through theme variables.
     text = themes_folder().joinpath(STYLESHEET_NAME).read_text(encoding="utf-8")
-    assert "#" not in text.replace("#title", "").replace("#body", "").replace(
-        "#sheet", "").replace("#side", "").replace("#ledger", "").replace(
-        "#links", "").replace("#finder-matches", "")
+    assert "#" not in text.replace("#title", "").replace("#body", "").replace("#sheet", "").replace(
+        "#side", ""
+    ).replace("#ledger", "").replace("#links", "").replace("#finder-matches", "")
 
 
 @pytest.mark.parametrize(
@@ -51,8 +52,9 @@ def test_broken_theme_text_is_an_error(text: str) -> None:
 
 
 def test_state_colours_default_from_theme_colours() -> None:
-    theme = parse_theme("name = 'mine'\n[colours]\nprimary = '#102030'\nerror = '#ff0000'\n",
-                        "mine.toml")
+    theme = parse_theme(
+        "name = 'mine'\n[colours]\nprimary = '#102030'\nerror = '#ff0000'\n", "mine.toml"
+    )
     assert theme.variables["result-error"] == "#ff0000"
     assert theme.variables["result-failed"] == "#ff0000"
 
@@ -76,8 +78,7 @@ def test_switch_theme_in_the_app(basic_sheet: Path, ui) -> None:
 
 def test_broken_theme_file_is_reported_not_fatal(basic_sheet: Path, tmp_path: Path, ui) -> None:
     broken = tmp_path / "broken.toml"
-    broken.write_text("name = 'broken'\n[colours]\nprimary = 'no such colour'\n",
-                      encoding="utf-8")
+    broken.write_text("name = 'broken'\n[colours]\nprimary = 'no such colour'\n", encoding="utf-8")
     app = WorksheetApp(str(basic_sheet), theme=str(broken))
 
     async def scenario(pilot, app: WorksheetApp) -> None:
@@ -91,8 +92,9 @@ def test_broken_theme_file_is_reported_not_fatal(basic_sheet: Path, tmp_path: Pa
 
 def test_theme_from_a_file(basic_sheet: Path, tmp_path: Path, ui) -> None:
     mine = tmp_path / "mine.toml"
-    mine.write_text("name = 'mine'\ndark = false\n[colours]\nprimary = '#204080'\n",
-                    encoding="utf-8")
+    mine.write_text(
+        "name = 'mine'\ndark = false\n[colours]\nprimary = '#204080'\n", encoding="utf-8"
+    )
     app = WorksheetApp(str(basic_sheet), theme=str(mine))
 
     async def scenario(pilot, app: WorksheetApp) -> None:

@@ -34,8 +34,9 @@ class RunOutcome:
 class _StoppedWorker(Worker):
     """Stands in for the worker of a run that was given up: every verb stops at once."""
 
-    def call(self, function: Callable[..., Any], args: tuple[Any, ...], seconds: float,
-             what: str) -> Any:
+    def call(
+        self, function: Callable[..., Any], args: tuple[Any, ...], seconds: float, what: str
+    ) -> Any:
         raise BudgetError(f"{what} was stopped: a newer edit replaced this run")
 
 
@@ -79,8 +80,9 @@ class RunService:
         self._guard = threading.Lock()  # protects the choice of engine
         self._closed = False
 
-    def run(self, doc: SheetDocument, cancelled: Callable[[], bool] = lambda: False
-            ) -> RunOutcome | None:
+    def run(
+        self, doc: SheetDocument, cancelled: Callable[[], bool] = lambda: False
+    ) -> RunOutcome | None:
         """Run ``doc``; None when cancelled while waiting, or when the run was given up."""
         while True:
             engine = self._engine
@@ -107,9 +109,14 @@ class RunService:
         try:
             run = runner.run(doc)
             evaluator = runner.evaluator(run.settings)
-            rows = quantity_rows(evaluator.bindings, evaluator.ctx.constants,
-                                 run.settings.dataset, run.statements, run.results,
-                                 run.settings.digits)
+            rows = quantity_rows(
+                evaluator.bindings,
+                evaluator.ctx.constants,
+                run.settings.dataset,
+                run.statements,
+                run.results,
+                run.settings.digits,
+            )
         except WorksheetError as err:
             return RunOutcome(doc, None, (), err.located())
         except Exception as err:  # a crash in the engine must not close the app

@@ -4,17 +4,55 @@ from __future__ import annotations
 
 import re
 
-VERBS = frozenset({
-    "diff", "integrate", "solve", "simplify", "expand", "factor", "series", "limit",
-    "dsolve", "subs", "natural",
-})
-KEYWORDS = frozenset({
-    "check", "in", "within", "around", "scaling", "table", "estimate", "from", "log", "lin",
-})
-FUNCTIONS = frozenset({
-    "sqrt", "exp", "ln", "log10", "sin", "cos", "tan", "asin", "acos", "atan", "sinh",
-    "cosh", "tanh", "abs", "min", "max",
-})
+VERBS = frozenset(
+    {
+        "diff",
+        "integrate",
+        "solve",
+        "simplify",
+        "expand",
+        "factor",
+        "series",
+        "limit",
+        "dsolve",
+        "subs",
+        "natural",
+    }
+)
+KEYWORDS = frozenset(
+    {
+        "check",
+        "in",
+        "within",
+        "around",
+        "scaling",
+        "table",
+        "estimate",
+        "from",
+        "log",
+        "lin",
+    }
+)
+FUNCTIONS = frozenset(
+    {
+        "sqrt",
+        "exp",
+        "ln",
+        "log10",
+        "sin",
+        "cos",
+        "tan",
+        "asin",
+        "acos",
+        "atan",
+        "sinh",
+        "cosh",
+        "tanh",
+        "abs",
+        "min",
+        "max",
+    }
+)
 
 # Which highlight name (as TextArea themes spell them) each kind of token gets.
 STYLE_OF = {

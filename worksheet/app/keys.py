@@ -21,8 +21,9 @@ class KeyAction:
 KEY_ACTIONS: tuple[KeyAction, ...] = (
     KeyAction("f1", "show_help", "Help", "Show every key and what it does"),
     KeyAction("ctrl+s", "save", "Save", "Save the sheet with fresh results"),
-    KeyAction("f2", "find_constant", "Constant",
-              "Find a constant or unit; insert it at the cursor"),
+    KeyAction(
+        "f2", "find_constant", "Constant", "Find a constant or unit; insert it at the cursor"
+    ),
     KeyAction("f3", "toggle_note", "Edit note", "Edit the chosen note, or show it rendered again"),
     KeyAction("f4", "switch_panel", "Panel", "Move between the sheet and the quantity ledger"),
     KeyAction("f6", "next_theme", "Theme", "Switch to the next colour theme", False),
@@ -31,8 +32,9 @@ KEY_ACTIONS: tuple[KeyAction, ...] = (
     KeyAction("ctrl+y", "redo", "Redo", "Redo what was undone", False),
     KeyAction("alt+c", "add_calc", "New calc", "Add a calc cell below the chosen cell", False),
     KeyAction("alt+n", "add_note", "New note", "Add a note below the chosen cell", False),
-    KeyAction("alt+x", "delete_cell", "Delete", "Delete the chosen cell (undo brings it back)",
-              False),
+    KeyAction(
+        "alt+x", "delete_cell", "Delete", "Delete the chosen cell (undo brings it back)", False
+    ),
     KeyAction("alt+up", "move_up", "Move up", "Move the chosen cell up", False),
     KeyAction("alt+down", "move_down", "Move down", "Move the chosen cell down", False),
     KeyAction("ctrl+q", "leave", "Quit", "Quit (asks when there are unsaved edits)"),
@@ -41,5 +43,7 @@ KEY_ACTIONS: tuple[KeyAction, ...] = (
 
 def app_bindings() -> list[Binding]:
     """Bindings for the app; priority so that editors do not swallow them."""
-    return [Binding(k.key, k.action, k.label, show=k.in_footer, priority=True,
-                    tooltip=k.description) for k in KEY_ACTIONS]
+    return [
+        Binding(k.key, k.action, k.label, show=k.in_footer, priority=True, tooltip=k.description)
+        for k in KEY_ACTIONS
+    ]

@@ -72,28 +72,60 @@ def quantity_rows(
     defined_on = {name: b.line for name, b in bindings.items() if b.line is not None}
 
     def read_by(name: str, own_line: int | None) -> tuple[int, ...]:
-        return tuple(sorted(line for line, used in names_of.items()
-                            if name in used and line != own_line))
+        return tuple(
+            sorted(line for line, used in names_of.items() if name in used and line != own_line)
+        )
 
     rows: list[QuantityRow] = []
     for name, binding in bindings.items():
         value, unit = _recorded(result_of.get(name), binding, digits)
 
         used = names_of.get(binding.line, frozenset()) if binding.line is not None else frozenset()
-        reads = tuple(sorted(((n, defined_on[n]) for n in used if n in defined_on
-                              and n != name), key=lambda item: item[1]))
+        reads = tuple(
+            sorted(
+                ((n, defined_on[n]) for n in used if n in defined_on and n != name),
+                key=lambda item: item[1],
+            )
+        )
         result = result_of.get(name)
-        rows.append(QuantityRow(name, value, unit, dimension_text(binding),
-                                _origin_text(binding), binding.line, reads,
-                                read_by(name, binding.line), _spread(result, binding)))
-    used_constants = sorted({n for used in names_of.values() for n in used
-                             if n in constants and n not in bindings})
+        rows.append(
+            QuantityRow(
+                name,
+                value,
+                unit,
+                dimension_text(binding),
+                _origin_text(binding),
+                binding.line,
+                reads,
+                read_by(name, binding.line),
+                _spread(result, binding),
+            )
+        )
+    used_constants = sorted(
+        {n for used in names_of.values() for n in used if n in constants and n not in bindings}
+    )
     for name in used_constants:
         binding = constants[name]
         value = format_number(binding.value, digits) if binding.value is not None else "(none)"
-        spread = (format_uncertainty(binding.uncertainty) if binding.uncertainty
-                  else "exact" if binding.value is not None else "")
-        rows.append(QuantityRow(name, value, binding.dimension.si_unit(),
-                                dimension_text(binding), f"constant, {dataset}", None,
-                                (), read_by(name, None), spread, binding.source))
+        spread = (
+            format_uncertainty(binding.uncertainty)
+            if binding.uncertainty
+            else "exact"
+            if binding.value is not None
+            else ""
+        )
+        rows.append(
+            QuantityRow(
+                name,
+                value,
+                binding.dimension.si_unit(),
+                dimension_text(binding),
+                f"constant, {dataset}",
+                None,
+                (),
+                read_by(name, None),
+                spread,
+                binding.source,
+            )
+        )
     return rows

@@ -24,10 +24,25 @@ THEMES_PACKAGE = "worksheet.themes"
 STYLESHEET_NAME = "worksheet.tcss"
 BUILT_IN = ("dark", "light", "contrast")
 
-COLOUR_KEYS = ("primary", "secondary", "warning", "error", "success", "accent", "foreground",
-               "background", "surface", "panel", "boost")
-STATE_DEFAULTS = {"result-ok": "success", "result-failed": "error", "result-error": "error",
-                  "result-stale": "warning"}
+COLOUR_KEYS = (
+    "primary",
+    "secondary",
+    "warning",
+    "error",
+    "success",
+    "accent",
+    "foreground",
+    "background",
+    "surface",
+    "panel",
+    "boost",
+)
+STATE_DEFAULTS = {
+    "result-ok": "success",
+    "result-failed": "error",
+    "result-error": "error",
+    "result-stale": "warning",
+}
 FALLBACK = {"success": "#4caf50", "error": "#e53935", "warning": "#ffb300"}
 
 
@@ -89,8 +104,7 @@ def themes_folder() -> Traversable:
 def read_stylesheet(folder: Traversable | None = None) -> str | None:
     """The app's stylesheet text, or None when it is missing or unreadable."""
     try:
-        return (folder or themes_folder()).joinpath(STYLESHEET_NAME).read_text(
-            encoding="utf-8")
+        return (folder or themes_folder()).joinpath(STYLESHEET_NAME).read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError, ModuleNotFoundError):
         return None
 
@@ -110,8 +124,11 @@ def load_themes(folder: Path | Traversable | None = None) -> ThemeLoad:
     problems: list[str] = []
     try:
         where = folder if folder is not None else themes_folder()
-        paths = sorted((p for p in where.iterdir() if p.name.endswith(".toml")),
-                       key=lambda p: p.name) if where.is_dir() else []
+        paths = (
+            sorted((p for p in where.iterdir() if p.name.endswith(".toml")), key=lambda p: p.name)
+            if where.is_dir()
+            else []
+        )
     except (OSError, ModuleNotFoundError):
         where, paths = None, []
     if not paths:

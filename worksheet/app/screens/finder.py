@@ -37,22 +37,32 @@ def search(dataset: Dataset, words: str) -> list[Found]:
         haystack = f"{symbol} {name}".casefold()
         return all(needle in haystack for needle in needles)
 
-    found = [Found(c.symbol, f"{c.symbol}  {c.name} = {c.value} {c.unit}")
-             for c in dataset.constants.values() if matches(c.symbol, c.name)]
-    found += [Found(f"[{u.symbol}]", f"[{u.symbol}]  {u.name} = {u.value} {u.unit}")
-              for u in dataset.units.values() if matches(u.symbol, u.name)]
-    found += [Found(f"[{symbol}]", f"[{symbol}]  {name} ({kind})")
-              for symbol, name, kind in COMMON_UNITS
-              if symbol not in dataset.units and matches(symbol, f"{name} {kind}")]
+    found = [
+        Found(c.symbol, f"{c.symbol}  {c.name} = {c.value} {c.unit}")
+        for c in dataset.constants.values()
+        if matches(c.symbol, c.name)
+    ]
+    found += [
+        Found(f"[{u.symbol}]", f"[{u.symbol}]  {u.name} = {u.value} {u.unit}")
+        for u in dataset.units.values()
+        if matches(u.symbol, u.name)
+    ]
+    found += [
+        Found(f"[{symbol}]", f"[{symbol}]  {name} ({kind})")
+        for symbol, name, kind in COMMON_UNITS
+        if symbol not in dataset.units and matches(symbol, f"{name} {kind}")
+    ]
     return found
 
 
 class ConstantFinder(ModalScreen[str | None]):
     """Type words; up/down choose; enter hands back the text to insert; escape gives None."""
 
-    BINDINGS: ClassVar[list[BindingType]] = [Binding("escape", "cancel", "Cancel"),
-                Binding("down", "next", "Next", show=False),
-                Binding("up", "previous", "Previous", show=False)]
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "cancel", "Cancel"),
+        Binding("down", "next", "Next", show=False),
+        Binding("up", "previous", "Previous", show=False),
+    ]
 
     def __init__(self, dataset: Dataset) -> None:
         super().__init__(classes="dialog-screen")
@@ -73,8 +83,9 @@ class ConstantFinder(ModalScreen[str | None]):
         self._found = search(self._dataset, words)
         options = self.query_one(OptionList)
         options.clear_options()
-        options.add_options([Option(Text(f.description), id=str(k))
-                             for k, f in enumerate(self._found)])
+        options.add_options(
+            [Option(Text(f.description), id=str(k)) for k, f in enumerate(self._found)]
+        )
         if self._found:
             options.highlighted = 0
 

@@ -78,8 +78,11 @@ class CalcCellView(Vertical):
             for widget in widgets[1:]:
                 widget.remove()
             fresh: list[ResultLines | PlotChart] = [
-                PlotChart(part.data, part.chart_lines) if isinstance(part, PlotPart)
-                else ResultLines() for part in parts[1:]]
+                PlotChart(part.data, part.chart_lines)
+                if isinstance(part, PlotPart)
+                else ResultLines()
+                for part in parts[1:]
+            ]
             if fresh:
                 self.mount_all(fresh)
             widgets = [widgets[0], *fresh]

@@ -49,10 +49,12 @@ class QuantityLedger(DataTable[Text]):
                 old = self._rows[name]
                 if row != old:
                     for column, (new_cell, old_cell) in enumerate(
-                            zip(_cells(row), _cells(old), strict=True)):
+                        zip(_cells(row), _cells(old), strict=True)
+                    ):
                         if new_cell != old_cell:
-                            self.update_cell(name, self._column_keys[column], new_cell,
-                                             update_width=True)
+                            self.update_cell(
+                                name, self._column_keys[column], new_cell, update_width=True
+                            )
             self._rows = fresh
             return
         keep = self.chosen_name()

@@ -33,8 +33,10 @@ class QuantityLinks(OptionList):
             self.add_option(Option(Text("choose a quantity in the ledger"), disabled=True))
             return
         options: list[Option] = [
-            Option(Text(f"{row.name} = {row.shown_value}  ({row.dimension}; {row.origin})"),
-                   disabled=True)
+            Option(
+                Text(f"{row.name} = {row.shown_value}  ({row.dimension}; {row.origin})"),
+                disabled=True,
+            )
         ]
         if row.uncertainty == "exact":
             options.append(Option(Text("exact by definition"), disabled=True))

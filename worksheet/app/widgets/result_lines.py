@@ -140,7 +140,10 @@ class ResultLines(Static):
         # height can change (another number of lines, or a changed line too long to fit).
         width = self.content_size.width
         changed = [text for _kind, text in set(lines) ^ set(self._shown)]
-        layout = (width <= 0 or len(lines) != len(self._shown)
-                  or any("\n" in text or cell_len(text) >= width for text in changed))
+        layout = (
+            width <= 0
+            or len(lines) != len(self._shown)
+            or any("\n" in text or cell_len(text) >= width for text in changed)
+        )
         self.update(Content.assemble(*parts), layout=layout)
         self._shown = lines
