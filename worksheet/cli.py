@@ -206,15 +206,34 @@ def _summary_lines(path_text: str, results) -> list[str]:
     return lines
 
 
-def _run(args: argparse.Namespace) -> int:
-    from worksheet.document import atomic_write_text
+def _check_output_folder(target: str) -> None:
+    """Refuse a missing ``-o`` folder before the sheet is run, not after (exit 2)."""
+    folder = os.path.dirname(os.path.abspath(target))
+    if not os.path.isdir(folder):
+        raise UsageError(
+            f"{target}: the folder {os.path.dirname(target) or folder} does not exist; "
+            "nothing was written (create it first, or give another path)"
+        )
 
-    run = _run_document(args.file, args.budget, lines_as_written=True)
-    target = args.output or args.file
+
+def _save(target: str, content: str | bytes) -> None:
+    """Write ``target`` atomically; a failed save is exit 2 with what happened, never 1."""
+    from worksheet.document import atomic_write_bytes
+
+    data = content.encode("utf-8") if isinstance(content, str) else content
     try:
-        atomic_write_text(target, run.text)
+        atomic_write_bytes(target, data)
+    except WorksheetError as err:  # full disk, read-only, no permission, missing folder
+        raise UsageError(err.located()) from err
     except OSError as err:
-        raise UsageError(f"{target}: cannot write ({err.strerror})") from err
+        raise UsageError(f"cannot save {target}: {err.strerror or err}") from err
+
+
+def _run(args: argparse.Namespace) -> int:
+    target = args.output or args.file
+    _check_output_folder(target)
+    run = _run_document(args.file, args.budget, lines_as_written=True)
+    _save(target, run.text)
     for warning in run.settings.warnings:
         print(f"{args.file}: warning: {warning}", file=sys.stderr)
     problems = _summary_lines(args.file, run.results)
@@ -322,9 +341,10 @@ def _open(args: argparse.Namespace) -> int:
 
 
 def _export(args: argparse.Namespace) -> int:
-    from worksheet.document import atomic_write_text
     from worksheet.export import PLOT_FORMATS, export_run, plot_files, run_problems
 
+    if args.output and args.to not in PLOT_FORMATS:
+        _check_output_folder(args.output)
     run = _run_document(args.file)
     stem = str(Path(args.file).with_suffix(""))
     if args.to in PLOT_FORMATS:
@@ -340,10 +360,7 @@ def _export(args: argparse.Namespace) -> int:
             return _export_outcome(args.file, run_problems(run))
         for item in files:
             target = folder / item.name
-            try:
-                target.write_bytes(item.content)
-            except OSError as err:
-                raise UsageError(f"{target}: cannot write ({err.strerror})") from err
+            _save(str(target), item.content)
             print(f"wrote {target}")
         return _export_outcome(args.file, run_problems(run))
     try:
@@ -351,7 +368,7 @@ def _export(args: argparse.Namespace) -> int:
     except WorksheetError as err:
         raise UsageError(f"{args.file}: {err.located()}") from err
     target = args.output or stem + suffix
-    atomic_write_text(target, text)
+    _save(target, text)
     print(f"wrote {target}")
     return _export_outcome(args.file, run_problems(run))
 

@@ -74,6 +74,8 @@ def read_settings(doc: SheetDocument) -> SheetSettings:
         )
     digits_text = doc.get("digits", "4") or "4"
     try:
+        if not digits_text.isascii():  # int() would take '٣' as 3
+            raise ValueError(digits_text)
         digits = int(digits_text)
     except ValueError as err:
         raise DocumentError(
@@ -85,6 +87,8 @@ def read_settings(doc: SheetDocument) -> SheetSettings:
     seconds = DEFAULT_SECONDS
     if budget_text is not None:
         try:
+            if not budget_text.isascii():  # float() would take '٣' as 3
+                raise ValueError(budget_text)
             seconds = float(budget_text.removesuffix("s").strip())
         except ValueError as err:
             raise DocumentError(

@@ -344,8 +344,10 @@ def test_new_blocks_use_the_given_line_end() -> None:
     )
     assert cell.result is None
     assert new_note_block("one\rtwo", "\r\n").text == "one\r\ntwo\r\n"
+    # A bare CR is a line end of its own (issue 11: old Mac files are kept as they are).
+    assert new_note_block("one\ntwo", "\r").text == "one\rtwo\r"
     with pytest.raises(DocumentError):
-        new_note_block("x", "\r")
+        new_note_block("x", "\n\r")
 
 
 def test_new_sheet_text_exactly() -> None:

@@ -88,7 +88,9 @@ def test_failure_leaves_old_file_and_no_temp_file(
     with pytest.raises(DocumentError) as caught:
         atomic_write_text(path, "new content\n")
     monkeypatch.undo()
-    assert caught.value.message == f"cannot save {path}: No space left on device"
+    assert caught.value.message == (
+        f"cannot save {path}: No space left on device; the file on disk is unchanged"
+    )
     assert isinstance(caught.value.__cause__, OSError)
     assert path.read_bytes() == b"old content\n"
     assert mode_of(path) == 0o640
@@ -115,7 +117,8 @@ def test_interrupt_cleans_up_and_propagates(
 def test_missing_folder_is_a_document_error(tmp_path: Path) -> None:
     with pytest.raises(DocumentError) as caught:
         atomic_write_text(tmp_path / "absent" / "a.sheet.md", "x\n")
-    assert isinstance(caught.value.__cause__, FileNotFoundError)
+    # Refused before any file is made (issue 11), saying which folder is missing.
+    assert f"the folder {tmp_path / 'absent'} does not exist" in caught.value.message
     assert os.listdir(tmp_path) == []
 
 

@@ -22,7 +22,7 @@ from worksheet.document.model import (
     split_lines,
 )
 from worksheet.document.reader import decode_sheet_bytes, parse_document, read_document
-from worksheet.document.storage import atomic_write_text
+from worksheet.document.storage import atomic_write_bytes, atomic_write_text
 from worksheet.document.writer import render_block, render_document, render_result_body
 
 __all__ = [
@@ -32,6 +32,7 @@ __all__ = [
     "NoteBlock",
     "ResultBlock",
     "SheetDocument",
+    "atomic_write_bytes",
     "atomic_write_text",
     "decode_sheet_bytes",
     "insert_block",

@@ -44,7 +44,7 @@ from worksheet.document.writer import render_block, render_document, render_resu
 from worksheet.errors import DocumentError
 
 _ANY_LINE_END = re.compile(r"\r\n|\n|\r")
-_NEWLINES = ("\n", "\r\n")
+_NEWLINES = ("\n", "\r\n", "\r")
 _PLAIN_SCALAR = re.compile(r"[A-Za-z0-9_][A-Za-z0-9_ .,;()+/=-]*")
 
 
@@ -64,7 +64,7 @@ def _sealed(text: str, newline: str) -> str:
 
 def _check_newline(newline: str) -> None:
     if newline not in _NEWLINES:
-        raise DocumentError(f"a line end must be '\\n' or '\\r\\n', not {newline!r}")
+        raise DocumentError(f"a line end must be '\\n', '\\r\\n' or '\\r', not {newline!r}")
 
 
 def _fences_for(fence_open: str, fence_close: str, body: str) -> tuple[str, str]:

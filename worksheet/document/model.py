@@ -145,7 +145,8 @@ Block = NoteBlock | CalcCell
 class SheetDocument:
     """A whole sheet file.
 
-    ``newline`` is the dominant line end (``"\\n"`` or ``"\\r\\n"``), used for new text.
+    ``newline`` is the dominant line end (``"\\n"``, ``"\\r\\n"`` or a bare ``"\\r"``), used
+    for new text.
     ``bom`` records a leading UTF-8 byte order mark, which is written back.
     """
 

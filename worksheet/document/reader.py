@@ -89,13 +89,19 @@ def is_blank(line: str) -> bool:
 
 
 def dominant_newline(text: str) -> str:
-    """``"\\r\\n"`` when CRLF line ends outnumber bare LF ones, else ``"\\n"``.
+    """The most common line end: ``"\\n"``, ``"\\r\\n"`` or a bare ``"\\r"`` (ties go to LF).
 
-    >>> dominant_newline("a\\r\\nb\\r\\nc\\n")
-    '\\r\\n'
+    New text (result blocks, cells) is written with it, so a file of bare CR line ends (old
+    Mac style) stays one kind of line end and every byte outside the results is kept.
+
+    >>> dominant_newline("a\\r\\nb\\r\\nc\\n"), dominant_newline("a\\rb\\rc\\n")
+    ('\\r\\n', '\\r')
     """
     crlf = text.count("\r\n")
     lf = text.count("\n") - crlf
+    cr = text.count("\r") - crlf
+    if cr > lf and cr > crlf:
+        return "\r"
     return "\r\n" if crlf > lf else "\n"
 
 

@@ -1,43 +1,189 @@
-"""Time budgets that really stop runaway work.
+"""Time and memory budgets that really stop runaway work.
 
 Symbolic verbs (simplify, integrate, solve, ...) run in a worker process that is killed when
 its budget runs out: a signal cannot interrupt a long C loop, a kill can. Everything else a
 statement does is bounded by the parser's guards; as a second belt, the main thread also
 arms an interval timer (``statement_timer``) that interrupts pure-Python loops.
+
+One budget covers one whole statement: the verbs of a statement share what is left of it.
+The worker's address space is capped, so a verb that would swallow the machine's memory is
+stopped with a clear message instead. The worker dies with the process that started it.
+
+Every request to the worker carries a serial number and a reply is accepted only for the
+request waited on; any exception while waiting (the statement timer, Ctrl-C) kills the
+worker, so an answer can never be handed to a later verb.
 """
 
 from __future__ import annotations
 
 import contextlib
+import ctypes
+import ctypes.util
 import multiprocessing
+import os
 import signal
+import sys
 import threading
+import time
 from collections.abc import Callable, Iterator
 from typing import Any
 
-from worksheet.errors import BudgetError, EvaluationError
+from worksheet.errors import BudgetError, EvaluationError, WorksheetError
 
 DEFAULT_SECONDS = 5.0
 
+DEFAULT_MEMORY_BYTES = 1 << 30
+"""Address space the worker may add to what it had when it started (1 GiB)."""
 
-def _serve(connection: Any) -> None:
-    """Worker loop: receive (function, args), send back ("ok", result) or ("error", text)."""
+TIMER_GRACE_SECONDS = 0.2
+"""The interval timer fires this much after the statement's budget, so that a verb waited on
+when the budget ends is stopped (and named in the message) by its own deadline first."""
+
+TIMER_REPEAT_SECONDS = 0.25
+"""After the first alarm, the timer fires again this often until the statement has ended."""
+
+PARENT_POLL_SECONDS = 0.5
+"""How often the worker's watchdog asks whether the process that started it is still there."""
+
+_RAISE_HINT = "(raise it with the 'budget' front-matter key or --budget)"
+_PR_SET_PDEATHSIG = 1  # from <linux/prctl.h>
+
+_deadline = threading.local()
+
+
+def _time_left(seconds: float) -> tuple[float, float]:
+    """The time a verb may take and the budget to name if it runs out.
+
+    ``seconds``, or less when the statement under way has less of its budget left (then
+    the statement's budget is the one named).
+    """
+    deadline = getattr(_deadline, "at", None)
+    if deadline is None:
+        return seconds, seconds
+    left = deadline - time.monotonic()
+    return (seconds, seconds) if seconds <= left else (left, _deadline.seconds)
+
+
+def _over_budget(what: str, seconds: float) -> BudgetError:
+    return BudgetError(
+        f"{what} ran past its time budget of {seconds:g} s and was stopped {_RAISE_HINT}"
+    )
+
+
+def _memory_message(what: str, limit: int | None) -> str:
+    cap = "its memory cap" if limit is None else f"its memory cap of {limit >> 20} MiB"
+    return f"{what} ran past {cap} and was stopped (the expression grows too large to handle)"
+
+
+# --- the worker side ----------------------------------------------------------------------
+
+
+def _die_with_parent(parent_pid: int, use_death_signal: bool) -> None:
+    """End this worker when the process that started it ends, however it ends.
+
+    On Linux the kernel sends SIGKILL at once (``PR_SET_PDEATHSIG``); it fires when the
+    *thread* that started the worker ends, so it is asked for only when that thread is the
+    main one. Everywhere, a watchdog thread also checks the parent id twice a second.
+    """
+    if use_death_signal and sys.platform.startswith("linux"):
+        with contextlib.suppress(OSError, AttributeError, TypeError):
+            libc = ctypes.CDLL(ctypes.util.find_library("c") or None, use_errno=True)
+            libc.prctl(_PR_SET_PDEATHSIG, signal.SIGKILL, 0, 0, 0)
+    if os.getppid() != parent_pid:
+        os._exit(0)  # the parent ended before the signal was asked for
+
+    def watch() -> None:
+        while True:
+            time.sleep(PARENT_POLL_SECONDS)
+            if os.getppid() != parent_pid:
+                os._exit(0)
+
+    threading.Thread(target=watch, name="parent-watchdog", daemon=True).start()
+
+
+def _address_space_bytes() -> int | None:
+    """This process's current address-space size, where the platform tells it."""
+    try:
+        with open("/proc/self/statm", encoding="ascii") as handle:
+            pages = int(handle.read().split()[0])
+        return pages * os.sysconf("SC_PAGE_SIZE")
+    except (OSError, ValueError, IndexError):
+        return None
+
+
+def _cap_memory(extra_bytes: int | None) -> int | None:
+    """Limit the address space to its present size plus ``extra_bytes``; the limit set."""
+    if extra_bytes is None:
+        return None
+    try:
+        import resource
+    except ImportError:  # not on this platform
+        return None
+    present = _address_space_bytes()
+    if present is None:
+        return None
+    limit = present + extra_bytes
+    with contextlib.suppress(ValueError, OSError):
+        _, hard = resource.getrlimit(resource.RLIMIT_AS)
+        if hard != resource.RLIM_INFINITY:
+            limit = min(limit, hard)
+        resource.setrlimit(resource.RLIMIT_AS, (limit, hard))
+        return limit
+    return None
+
+
+def _answer(function: Callable[..., Any], args: tuple[Any, ...]) -> tuple[str, Any]:
+    """(status, payload) for one request; ``memory`` means the cap was hit."""
+    try:
+        return "ok", function(*args)
+    except MemoryError:
+        return "memory", ""
+    except EvaluationError as err:
+        return "error", err.message
+    except RecursionError:
+        return "error", "the expression is too deeply nested to process"
+    except Exception as err:  # any failure of one verb is that verb's error, not the worker's
+        return "error", f"{type(err).__name__}: {err}"
+
+
+def _serve(
+    connection: Any,
+    inherited: Any,
+    parent_pid: int,
+    use_death_signal: bool,
+    memory_bytes: int | None,
+) -> None:
+    """Worker loop: receive (serial, function, args), send back (serial, status, payload)."""
+    with contextlib.suppress(OSError):
+        inherited.close()  # the parent's end, copied by fork: keep it from holding the pipe
+    # Ctrl-C reaches the whole process group; the parent handles it and stops the worker,
+    # which must not die on its own with a traceback of its own.
+    with contextlib.suppress(ValueError, OSError):
+        signal.signal(signal.SIGINT, signal.SIG_IGN)
+    _die_with_parent(parent_pid, use_death_signal)
+    limit = _cap_memory(memory_bytes)
+    connection.send((0, "ready", limit))
     while True:
         try:
             request = connection.recv()
-        except EOFError:
+        except (EOFError, OSError):
             return
         if request is None:
             return
-        function, args = request
+        serial, function, args = request
+        status, payload = _answer(function, args)
         try:
-            connection.send(("ok", function(*args)))
-        except EvaluationError as err:
-            connection.send(("error", err.message))
-        except RecursionError:
-            connection.send(("error", "the expression is too deeply nested to process"))
-        except (ValueError, TypeError, NotImplementedError, ArithmeticError, AttributeError) as err:
-            connection.send(("error", f"{type(err).__name__}: {err}"))
+            connection.send((serial, status, payload))
+        except MemoryError:
+            status = "memory"
+            connection.send((serial, status, ""))
+        except Exception as err:  # the answer could not be sent (not picklable, too deep)
+            connection.send((serial, "error", f"the answer could not be passed back ({err})"))
+        if status == "memory":
+            return  # after a MemoryError the worker's state is not to be trusted
+
+
+# --- the caller side ----------------------------------------------------------------------
 
 
 # What sympy's integrate and solve import on their first call (lazily): imported once in
@@ -62,55 +208,115 @@ def preload_verb_modules() -> None:
 
 
 class Worker:
-    """One persistent helper process; replaced after a budget kill."""
+    """One persistent helper process; replaced after a budget kill.
 
-    def __init__(self) -> None:
+    Args:
+        memory_bytes: address space the worker may add to its size at start; ``None``
+            leaves it uncapped.
+    """
+
+    def __init__(self, memory_bytes: int | None = DEFAULT_MEMORY_BYTES) -> None:
         self._process: Any = None
         self._connection: Any = None
         self._lock = threading.Lock()
+        self._serial = 0
+        self.memory_bytes = memory_bytes
+        self.memory_limit: int | None = None  # the address-space limit the worker reported
+
+    @property
+    def pid(self) -> int | None:
+        """The worker's process id while it runs (for tests and diagnostics)."""
+        process = self._process
+        return None if process is None else process.pid
 
     def _start(self) -> None:
         preload_verb_modules()
         methods = multiprocessing.get_all_start_methods()
         context = multiprocessing.get_context("fork" if "fork" in methods else "spawn")
         parent, child = context.Pipe()
-        process = context.Process(target=_serve, args=(child,), daemon=True)
+        main = threading.current_thread() is threading.main_thread()
+        process = context.Process(
+            target=_serve,
+            args=(child, parent, os.getpid(), main, self.memory_bytes),
+            daemon=True,
+        )
         process.start()
         child.close()
         self._process, self._connection = process, parent
+        try:
+            if not parent.poll(30):
+                raise EvaluationError("the worker process did not start")
+            _, _, self.memory_limit = parent.recv()
+        except BaseException:
+            self._stop()
+            raise
 
     def _stop(self) -> None:
-        if self._process is not None:
-            self._process.kill()
-            self._process.join(timeout=2)
-            with contextlib.suppress(OSError):
-                self._connection.close()
+        # Forget the process first: an alarm landing in here must not leave it half-stopped.
+        process, connection = self._process, self._connection
         self._process = self._connection = None
+        if process is not None:
+            with contextlib.suppress(OSError, ValueError, AttributeError):
+                process.kill()
+            with contextlib.suppress(OSError):
+                connection.close()
+            process.join(timeout=2)
+
+    def _stopped(self, what: str) -> WorksheetError:
+        """The error for a worker that ended while answering, with its cause if known."""
+        process = self._process
+        code = None
+        if process is not None:
+            process.join(timeout=1)
+            code = process.exitcode
+        if code is not None and code < 0 and -code in (signal.SIGSEGV, signal.SIGABRT):
+            return BudgetError(_memory_message(what, self.memory_limit))
+        return EvaluationError(f"{what} failed: the worker process stopped")
+
+    def _await(
+        self, serial: int, seconds: float, what: str, budget: float | None = None
+    ) -> tuple[str, Any]:
+        """The reply to request ``serial``; replies to earlier requests are dropped."""
+        deadline = time.monotonic() + seconds
+        while True:
+            remaining = deadline - time.monotonic()
+            try:
+                if remaining <= 0 or not self._connection.poll(remaining):
+                    raise _over_budget(what, seconds if budget is None else budget)
+                number, status, payload = self._connection.recv()
+            except (OSError, EOFError) as err:
+                raise self._stopped(what) from err
+            if number == serial:
+                return status, payload
 
     def call(
         self, function: Callable[..., Any], args: tuple[Any, ...], seconds: float, what: str
     ) -> Any:
-        """``function(*args)`` in the worker; BudgetError after ``seconds``."""
+        """``function(*args)`` in the worker; BudgetError after ``seconds``.
+
+        ``seconds`` is cut to what the statement under way (``statement_timer``) has left.
+        """
         with self._lock:
+            allowed, budget = _time_left(seconds)
+            if allowed <= 0:
+                raise _over_budget(what, budget)
             if self._process is None or not self._process.is_alive():
                 self._start()
+            self._serial += 1
             try:
-                self._connection.send((function, args))
-                ready = self._connection.poll(seconds)
-            except (OSError, EOFError) as err:
+                try:
+                    self._connection.send((self._serial, function, args))
+                except (OSError, EOFError) as err:  # it died between the check and now
+                    raise self._stopped(what) from err
+                status, payload = self._await(self._serial, allowed, what, budget)
+            except BaseException:
+                # Timer, Ctrl-C, budget, a dead pipe: the worker may still be busy with this
+                # request, and its late answer must never reach the next one.
                 self._stop()
-                raise EvaluationError(f"{what} failed: the worker process stopped") from err
-            if not ready:
+                raise
+            if status == "memory":
                 self._stop()
-                raise BudgetError(
-                    f"{what} ran past its time budget of {seconds:g} s and was stopped "
-                    "(raise it with the 'budget' front-matter key or --budget)"
-                )
-            try:
-                status, payload = self._connection.recv()
-            except (OSError, EOFError) as err:
-                self._stop()
-                raise EvaluationError(f"{what} failed: the worker process stopped") from err
+                raise BudgetError(_memory_message(what, self.memory_limit))
         if status == "error":
             raise EvaluationError(f"{what} failed: {payload}")
         return payload
@@ -136,25 +342,43 @@ class Worker:
 
 @contextlib.contextmanager
 def statement_timer(seconds: float) -> Iterator[None]:
-    """Interrupt pure-Python work in the main thread after ``seconds`` (a no-op elsewhere)."""
-    if (
-        threading.current_thread() is not threading.main_thread()
-        or not hasattr(signal, "setitimer")
-        or seconds <= 0
-    ):
-        yield
-        return
+    """One budget of ``seconds`` for a whole statement.
 
-    def expire(signum: int, frame: Any) -> None:
-        raise BudgetError(
-            f"the statement ran past {seconds:g} s (twice the budget per verb) and was stopped "
-            "(raise it with the 'budget' front-matter key or --budget)"
-        )
-
-    previous = signal.signal(signal.SIGALRM, expire)
-    signal.setitimer(signal.ITIMER_REAL, seconds)
+    Verbs called inside share what is left of it (in any thread). In the main thread an
+    interval timer also interrupts pure-Python work when it runs out.
+    """
+    previous_deadline = getattr(_deadline, "at", None), getattr(_deadline, "seconds", None)
+    if seconds > 0:
+        _deadline.at, _deadline.seconds = time.monotonic() + seconds, seconds
     try:
-        yield
+        if (
+            threading.current_thread() is not threading.main_thread()
+            or not hasattr(signal, "setitimer")
+            or seconds <= 0
+        ):
+            yield
+            return
+
+        armed = [True]
+
+        def expire(signum: int, frame: Any) -> None:
+            if armed[0]:
+                raise BudgetError(
+                    f"the statement ran past its time budget of {seconds:g} s and was stopped "
+                    f"{_RAISE_HINT}"
+                )
+
+        previous = signal.signal(signal.SIGALRM, expire)
+        # The timer repeats: an exception raised inside a garbage-collector callback or a
+        # __del__ is swallowed by Python, and one swallowed alarm must not free the statement.
+        signal.setitimer(signal.ITIMER_REAL, seconds + TIMER_GRACE_SECONDS, TIMER_REPEAT_SECONDS)
+        try:
+            yield
+        finally:
+            try:
+                armed[0] = False
+            finally:  # reached even when an alarm lands on the line above
+                signal.setitimer(signal.ITIMER_REAL, 0)
+                signal.signal(signal.SIGALRM, previous)
     finally:
-        signal.setitimer(signal.ITIMER_REAL, 0)
-        signal.signal(signal.SIGALRM, previous)
+        _deadline.at, _deadline.seconds = previous_deadline

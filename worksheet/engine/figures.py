@@ -199,8 +199,9 @@ def compute_figures(
     if _has_uncertain_inputs(expr, sheet, ctx):
         dual = evaluate(expr, SymbolValues(sheet, ctx, "dual"), DUAL)
         gradient = {key: d for key, d in dual.grad.items() if d != 0}
-        total = math.fsum((d * input_uncertainty(key)) ** 2 for key, d in gradient.items())
-        uncertainty = math.sqrt(total) if total > 0 else None
+        # hypot, not sqrt of a sum of squares: the squares of 1e300 * G's u overflow.
+        total = math.hypot(*(d * input_uncertainty(key) for key, d in gradient.items()))
+        uncertainty = total if total > 0 else None
         if uncertainty is not None and uncertainty <= ROUNDING_FLOOR * abs(value):
             uncertainty = None  # what is left after exact cancellation is rounding noise
     return Figures(value, precise, gradient, uncertainty, loss)
@@ -339,6 +340,5 @@ def in_unit_uncertainty(
     shifted = dict(gradient)
     # d(si / F)/dG * F = d si/dG - si * d ln F/dG, with d ln F/dG = k / G.
     shifted["G"] = shifted.get("G", 0.0) - si * float(g_power) / g.value
-    total = math.fsum((d * input_uncertainty(key)) ** 2 for key, d in shifted.items())
-    result = math.sqrt(total)
+    result = math.hypot(*(d * input_uncertainty(key) for key, d in shifted.items()))
     return None if result <= ROUNDING_FLOOR * abs(si) else result

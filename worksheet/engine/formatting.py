@@ -10,6 +10,7 @@ for powers.
 from __future__ import annotations
 
 import math
+from decimal import Decimal
 
 import sympy
 from sympy.printing.str import StrPrinter
@@ -87,11 +88,12 @@ class _SheetPrinter(StrPrinter):
     def _print_Integer(self, expr: sympy.Integer) -> str:
         """Long round numbers as the sheet writes them: 10^400 is ``1e400`` (still exact)."""
         value = int(expr)
-        text = str(abs(value))
+        # Decimal has no digit limit for int -> text (Python refuses str() past 4300 digits).
+        text = str(Decimal(abs(value))) if value.bit_length() > 14000 else str(abs(value))
         zeros = len(text) - len(text.rstrip("0"))
         if zeros >= 6:
             return ("-" if value < 0 else "") + f"{text[:-zeros]}e{zeros}"
-        return str(value)
+        return ("-" if value < 0 else "") + text
 
     def _print_Exp1(self, expr: sympy.Expr) -> str:
         return "exp(1)"

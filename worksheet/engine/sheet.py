@@ -19,7 +19,7 @@ from worksheet.engine.context import Context
 from worksheet.engine.import_scope import ImportScope
 from worksheet.engine.results import StatementResult
 from worksheet.engine.statements import KINDS, RESERVED_NAMES, StatementEvaluator
-from worksheet.errors import NameResolutionError, WorksheetError
+from worksheet.errors import EvaluationError, NameResolutionError, WorksheetError
 from worksheet.syntax import parse_statement
 from worksheet.syntax import tree as t
 from worksheet.syntax.names import referenced_names
@@ -44,7 +44,12 @@ def split_statements(body: str, first_line: int, cell: int = 0) -> list[SourceSt
     pending: list[str] = []
     start = first_line
     depth = 0
-    for offset, raw in enumerate(body.splitlines()):
+    # Only \n, \r\n and a bare \r end a line, as in the document model: str.splitlines
+    # would also break at form feeds and Unicode separators and shift every line number.
+    lines = _LINE_END.split(body)
+    if lines and lines[-1] == "":
+        lines.pop()
+    for offset, raw in enumerate(lines):
         if not pending:
             start = first_line + offset
         pending.append(raw)
@@ -57,7 +62,23 @@ def split_statements(body: str, first_line: int, cell: int = 0) -> list[SourceSt
     return statements
 
 
+_LINE_END = re.compile(r"\r\n|\n|\r")
 _DEFINED_NAME = re.compile(r"\s*([^\W\d]\w*)\s*(?:=(?!=)|:)")
+
+
+def internal_error(err: Exception, line: int) -> EvaluationError:
+    """An unexpected exception of one statement, as that statement's recorded error.
+
+    Every cause found is fixed where it arises; this keeps a cause not yet found from
+    taking the whole sheet down.
+    """
+    detail = str(err).splitlines()[0][:200] if str(err) else ""
+    name = type(err).__name__
+    return EvaluationError(
+        f"internal error ({name}{': ' + detail if detail else ''}); "
+        "this statement was not evaluated, the rest of the sheet was",
+        line,
+    )
 
 
 def _serial(binding: Binding | None) -> int:
@@ -160,6 +181,8 @@ class SheetEvaluator:
                 parsed: t.AnyStatement | WorksheetError = parse_statement(source.text, source.line)
             except WorksheetError as err:
                 parsed = err
+            except Exception as err:  # last resort: one statement's bug, recorded, never a crash
+                parsed = internal_error(err, source.line)
             if isinstance(parsed, WorksheetError):
                 # A definition that does not parse still claims its name, so that the lines
                 # using it say they depend on it rather than that it is unknown.
@@ -397,11 +420,13 @@ class SheetEvaluator:
                     message=message,
                     record=message,
                 ), None
-        with statement_timer(self.ctx.seconds * 2):
-            try:
+        try:
+            with statement_timer(self.ctx.seconds):
                 return evaluator.evaluate(parsed)
-            except WorksheetError as err:  # budget from the timer
-                return evaluator.error_result(parsed, err), None
+        except WorksheetError as err:  # budget from the timer
+            return evaluator.error_result(parsed, err), None
+        except Exception as err:  # last resort: one statement's bug, recorded, never a crash
+            return evaluator.error_result(parsed, internal_error(err, line)), None
 
     @property
     def bindings(self) -> dict[str, Binding]:

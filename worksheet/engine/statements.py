@@ -97,6 +97,27 @@ class Quantity:
         return self.figures.trusted
 
 
+def _view_factor(compute: Callable[[], float], conversion: t.Conversion) -> float:
+    """The factor of a natural or Planck view; an error where no double can hold it.
+
+    ``1 [m^-60] in planck`` needs l_P^60 (about 1e-2096): it would become 0 and the value
+    a division by zero.
+    """
+    try:
+        factor = compute()
+    except (OverflowError, ZeroDivisionError):
+        factor = math.inf
+    if factor == 0 or not math.isfinite(factor):
+        view = "Planck units" if conversion.planck else "natural units"
+        raise EvaluationError(
+            f"the conversion to {view} needs a factor outside what a double can hold "
+            "(about 1e-308 to 1e308); the dimension's powers are too high",
+            conversion.line,
+            conversion.column,
+        )
+    return factor
+
+
 class StatementEvaluator:
     """Evaluates statements for one sheet (or one ``calc``) with a shared context.
 
@@ -259,17 +280,17 @@ class StatementEvaluator:
         except DimensionError as err:
             raise DimensionError(err.message, conversion.line, conversion.column) from err
         constants = self.ctx.constants
-        scale = 1.0
-        for symbol, power in (("hbar", factor.p), ("c", factor.q), ("k_B", factor.r)):
-            value = constants[symbol].value
-            assert value is not None
-            scale *= value ** float(power)
-        # shown = si * scale / E^n  ==  si / (E^n / scale)
-        return (
-            power_text(conversion.unit.source, factor.n),
-            energy.factor ** float(factor.n) / scale,
-            0.0,
-        )
+
+        def divisor() -> float:
+            scale = 1.0
+            for symbol, power in (("hbar", factor.p), ("c", factor.q), ("k_B", factor.r)):
+                value = constants[symbol].value
+                assert value is not None
+                scale *= value ** float(power)
+            # shown = si * scale / E^n  ==  si / (E^n / scale)
+            return energy.factor ** float(factor.n) / scale
+
+        return power_text(conversion.unit.source, factor.n), _view_factor(divisor, conversion), 0.0
 
     def _planck_unit(self, dim: Dimension, conversion: t.Conversion) -> tuple[str, float, float]:
         """``in planck``: a pure number of Planck units (G = hbar = c = k_B = 1)."""
@@ -277,13 +298,18 @@ class StatementEvaluator:
             exponents = planck_exponents(dim)
         except DimensionError as err:
             raise DimensionError(err.message, conversion.line, conversion.column) from err
-        scale = 1.0
-        for symbol, power in zip(("l_P", "m_P", "t_P", "T_P"), exponents, strict=True):
-            if power:
-                value = self.ctx.constants[symbol].value
-                assert value is not None
-                scale *= value ** float(power)
-        return "", scale, 0.0
+        constants = self.ctx.constants
+
+        def product() -> float:
+            scale = 1.0
+            for symbol, power in zip(("l_P", "m_P", "t_P", "T_P"), exponents, strict=True):
+                if power:
+                    value = constants[symbol].value
+                    assert value is not None
+                    scale *= value ** float(power)
+            return scale
+
+        return "", _view_factor(product, conversion), 0.0
 
     def _view_note(self, stmt: t.Statement, dim: Dimension) -> str | None:
         conversion = getattr(stmt, "conversion", None)

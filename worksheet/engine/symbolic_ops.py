@@ -83,9 +83,7 @@ def solve(lhs: sympy.Expr, rhs: sympy.Expr, variable: sympy.Symbol) -> list[symp
         roots = sympy.solve(sympy.Eq(lhs, rhs), variable, dict=False)
     except NotImplementedError:
         return None
-    return [
-        exponents_out_of_logs(simplest(root)) for root in roots if root.is_real is not False
-    ]
+    return [exponents_out_of_logs(simplest(root)) for root in roots if root.is_real is not False]
 
 
 def exponents_out_of_logs(expr: sympy.Expr) -> sympy.Expr:

@@ -62,30 +62,49 @@ _OPERATORS = (
 _ALIASES = {"π": "pi", "ħ": "hbar", "×": "*", "·": "*", "−": "-", "²": "^2", "³": "^3"}
 
 
+_DIGITS = frozenset("0123456789")
+
+
+def _is_digit(char: str) -> bool:
+    """An ASCII digit: ``str.isdigit`` also takes '¹', '①' and other scripts' digits."""
+    return char in _DIGITS
+
+
 def _is_name_start(char: str) -> bool:
     return char == "_" or unicodedata.category(char).startswith("L")
 
 
 def _is_name_part(char: str) -> bool:
-    return _is_name_start(char) or char.isdigit()
+    return _is_name_start(char) or _is_digit(char)
+
+
+def foreign_digit_error(char: str, line: int, column: int) -> ParseError:
+    """The refusal of a digit-like character outside 0-9 (superscripts, circled, Arabic)."""
+    name = unicodedata.name(char, "").lower() or repr(char)
+    return ParseError(
+        f"'{char}' ({name}) is not a digit of the sheet language: write numbers with 0-9 "
+        "and powers with ^ (only ² and ³ stand for ^2 and ^3)",
+        line,
+        column,
+    )
 
 
 def _scan_number(text: str, start: int) -> int:
     """Index just past a decimal literal beginning at ``start``."""
     i = start
     n = len(text)
-    while i < n and text[i].isdigit():
+    while i < n and _is_digit(text[i]):
         i += 1
     if i < n and text[i] == "." and not text.startswith("..", i):
         i += 1
-        while i < n and text[i].isdigit():
+        while i < n and _is_digit(text[i]):
             i += 1
     if i < n and text[i] in "eE":
         j = i + 1
         if j < n and text[j] in "+-":
             j += 1
-        if j < n and text[j].isdigit():
-            while j < n and text[j].isdigit():
+        if j < n and _is_digit(text[j]):
+            while j < n and _is_digit(text[j]):
                 j += 1
             i = j
     return i
@@ -138,7 +157,9 @@ def tokenize(text: str, line: int = 1, column: int = 1) -> list[Token]:
                 tokens.append(Token(kind, alias, cur_line, col(i)))
             i += 1
             continue
-        if char.isdigit() or (char == "." and i + 1 < n and text[i + 1].isdigit()):
+        if char.isnumeric() and not _is_digit(char):
+            raise foreign_digit_error(char, cur_line, col(i))
+        if _is_digit(char) or (char == "." and i + 1 < n and _is_digit(text[i + 1])):
             end = _scan_number(text, i)
             if end < n and _is_name_start(text[end]):
                 raise ParseError(

@@ -9,12 +9,13 @@ import re
 from fractions import Fraction
 
 from worksheet.errors import ParseError
+from worksheet.syntax.tokens import foreign_digit_error
 from worksheet.syntax.tree import UnitExpr
 
 MAX_UNIT_POWER = 100
 
 _TOKEN = re.compile(
-    r"\s*(?:(?P<number>\d+(?:\.\d*)?(?:[eE][+-]?\d+)?|\.\d+(?:[eE][+-]?\d+)?)"
+    r"\s*(?:(?P<number>[0-9]+(?:\.[0-9]*)?(?:[eE][+-]?[0-9]+)?|\.[0-9]+(?:[eE][+-]?[0-9]+)?)"
     r"|(?P<name>[^\W\d]\w*)|(?P<op>\*\*|[*/^()\-]))"
 )
 
@@ -31,27 +32,31 @@ class _UnitParser:
             match = _TOKEN.match(stripped, pos)
             if not match or match.end() == pos:
                 bad = stripped[pos:].lstrip()[:1]
-                raise ParseError(
-                    f"unexpected character '{bad}' in unit [{text}]",
-                    line,
-                    column + pos + (len(stripped[pos:]) - len(stripped[pos:].lstrip())),
-                )
+                where = column + pos + (len(stripped[pos:]) - len(stripped[pos:].lstrip()))
+                if bad.isnumeric():
+                    raise foreign_digit_error(bad, line, where)
+                raise ParseError(f"unexpected character '{bad}' in unit [{text}]", line, where)
             kind = match.lastgroup or ""
             value = match.group(kind)
+            foreign = next((c for c in value if c.isnumeric() and not c.isascii()), None)
+            if foreign is not None:  # a name may not carry '¹' or '٣' either
+                raise foreign_digit_error(foreign, line, column + match.start(kind))
             self.tokens.append((kind, "^" if value == "**" else value, column + match.start(kind)))
             pos = match.end()
         self.tokens.append(("end", "", column + len(stripped)))
         self.index = 0
 
     def error(self, message: str) -> ParseError:
-        return ParseError(f"{message} in unit [{self.text}]", self.line, self.tokens[self.index][2])
+        where = self.tokens[min(self.index, len(self.tokens) - 1)][2]
+        return ParseError(f"{message} in unit [{self.text}]", self.line, where)
 
     def peek(self) -> tuple[str, str, int]:
         return self.tokens[self.index]
 
     def take(self) -> tuple[str, str, int]:
         token = self.tokens[self.index]
-        self.index += 1
+        if token[0] != "end":  # the end is taken as often as asked, never passed
+            self.index += 1
         return token
 
     def parse(self) -> UnitExpr:

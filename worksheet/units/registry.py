@@ -62,6 +62,41 @@ def _clean(value: float) -> float:
     return float(f"{value:.15g}")
 
 
+def _si_factor(
+    unit: UnitExpr, parts: list[ResolvedUnit], line: int | None, column: int | None
+) -> float:
+    """The SI factor of a bracket expression; an error when no double can hold it.
+
+    ``[pc^-100]`` is about 1e-1649 and ``[1e400 m]`` 1e400: both would silently become 0 or
+    inf (and then crash a division later), so they are refused here with their size.
+    """
+    try:
+        factor = float(unit.scale)
+        for (_, power), part in zip(unit.factors, parts, strict=True):
+            factor *= part.factor ** float(power)
+    except (OverflowError, ZeroDivisionError):
+        factor = math.inf
+    if factor != 0 and math.isfinite(factor):
+        return factor
+    size = _log10_size(unit, parts)
+    raise ParseError(
+        f"unit [{unit.source}] is about 1e{size:.0f} in SI units, outside what a double "
+        "can hold (about 1e-308 to 1e308); use a smaller power or a larger unit",
+        line,
+        column,
+    )
+
+
+def _log10_size(unit: UnitExpr, parts: list[ResolvedUnit]) -> float:
+    """log10 of the SI factor, computed without overflow."""
+    scale = abs(unit.scale)
+    size = math.log10(scale.numerator) - math.log10(scale.denominator)
+    for (_, power), part in zip(unit.factors, parts, strict=True):
+        if part.factor > 0:
+            size += float(power) * math.log10(part.factor)
+    return size
+
+
 class UnitRegistry:
     """Resolves bracket text to SI factors and dimensions, for one constants dataset.
 
@@ -162,7 +197,6 @@ class UnitRegistry:
         cached = self._units.get(unit.source)
         if cached is not None:
             return cached
-        factor = float(unit.scale)
         dimension = Dimension()
         parts: list[ResolvedUnit] = []
         for name, power in unit.factors:
@@ -171,8 +205,8 @@ class UnitRegistry:
             except ParseError as err:
                 raise ParseError(err.message, line, column) from err
             parts.append(part)
-            factor *= part.factor ** float(power)
             dimension = dimension * part.dimension**power
+        factor = _si_factor(unit, parts, line, column)
         offset_parts = [part for part in parts if part.is_offset]
         if offset_parts:
             only = len(unit.factors) == 1 and unit.factors[0][1] == 1 and unit.scale == 1
