@@ -102,3 +102,41 @@ def test_quit_without_edits_does_not_ask(basic_sheet: Path, ui) -> None:
 
     ui.drive(app, scenario)
     assert basic_sheet.read_text(encoding="utf-8") == ui.basic_text
+
+
+UNRECORDED = """\
+---
+title: Two cells, no results yet
+constants: CODATA2022
+---
+
+```calc
+a = 1 [m]
+b = 2 [s]
+```
+
+```calc
+d = a + b
+```
+"""
+"""No result blocks: the first save inserts one after each cell, moving the second cell."""
+
+
+def test_issue10_save_cites_the_lines_of_the_file_written(tmp_path: Path, ui) -> None:
+    """The app's save writes what `worksheet run` writes: errors cite the saved file's lines."""
+    sheet = tmp_path / "moved.sheet.md"
+    sheet.write_text(UNRECORDED, encoding="utf-8")
+    app = WorksheetApp(str(sheet))
+
+    async def scenario(pilot, app: WorksheetApp) -> None:
+        await ui.settle(pilot, app)
+        await pilot.press("ctrl+s")
+        await ui.wait_for(pilot, lambda: sheet.read_text(encoding="utf-8") != UNRECORDED)
+        await ui.wait_for(pilot, lambda: not app.session.dirty)
+
+    ui.drive(app, scenario)
+    saved = sheet.read_text(encoding="utf-8").splitlines()
+    written_line = saved.index("d = a + b") + 1  # 1-based, in the file as saved
+    errors = [line for line in saved if "cannot add" in line]
+    assert errors and errors[0].startswith(f"line {written_line}, "), errors
+    assert written_line != UNRECORDED.splitlines().index("d = a + b") + 1  # it did move

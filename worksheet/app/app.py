@@ -636,7 +636,7 @@ class WorksheetApp(App[int]):
         service = self.service.get()
         for _ in range(3 if service is not None else 0):
             # A run given up for a newer edit gives None: the save is still wanted.
-            outcome = service.run(doc)  # type: ignore[union-attr, arg-type]
+            outcome = service.run(doc, lines_as_written=True)  # type: ignore[union-attr, arg-type]
             if outcome is not None or self._closed:
                 break
         problem = None

@@ -82,9 +82,15 @@ class RunService:
         self._closed = False
 
     def run(
-        self, doc: SheetDocument, cancelled: Callable[[], bool] = lambda: False
+        self,
+        doc: SheetDocument,
+        cancelled: Callable[[], bool] = lambda: False,
+        lines_as_written: bool = False,
     ) -> RunOutcome | None:
-        """Run ``doc``; None when cancelled while waiting, or when the run was given up."""
+        """Run ``doc``; None when cancelled while waiting, or when the run was given up.
+
+        ``lines_as_written`` (for saving) makes messages cite the lines of the file written,
+        as ``worksheet run`` does."""
         while True:
             engine = self._engine
             with engine.lock:
@@ -95,7 +101,7 @@ class RunService:
                 with self._guard:
                     engine.started, engine.doc = time.monotonic(), doc
                 try:
-                    outcome = self._run_on(engine.runner, doc)
+                    outcome = self._run_on(engine.runner, doc, lines_as_written)
                 finally:
                     with self._guard:
                         engine.started, engine.doc = None, None
@@ -106,9 +112,11 @@ class RunService:
                 return outcome
 
     @staticmethod
-    def _run_on(runner: SheetRunner, doc: SheetDocument) -> RunOutcome:
+    def _run_on(
+        runner: SheetRunner, doc: SheetDocument, lines_as_written: bool = False
+    ) -> RunOutcome:
         try:
-            run = runner.run(doc)
+            run = runner.run(doc, lines_as_written)
             evaluator = runner.evaluator(run.settings)
             rows = quantity_rows(
                 evaluator.bindings,
