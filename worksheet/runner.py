@@ -323,14 +323,7 @@ class SheetRunner:
             settings.samples,
         )
         if key not in self._evaluators:
-            context = make_context(
-                settings.dataset,
-                settings.digits,
-                settings.seconds,
-                settings.guard,
-                settings.seed,
-                settings.samples,
-            )
+            context = make_context(*key)  # the key is make_context's arguments, in order
             self._contexts[key] = context
             self._evaluators[key] = SheetEvaluator(context)
         return self._evaluators[key]

@@ -31,6 +31,10 @@ KEYWORDS = frozenset(
         "from",
         "log",
         "lin",
+        "use",
+        "library",
+        "variance",
+        "histogram",
     }
 )
 FUNCTIONS = frozenset(
