@@ -1,12 +1,14 @@
 """Issue 10's cross-face test: for every demo sheet, each quantity's value, uncertainty and
 unit are the same in the result block, ``--json``, the Python API and each export (LaTeX,
-HTML, Markdown).
+HTML, Markdown). A sampled quantity (one read from ranged inputs) has no uncertainty but a
+median and its 68% and 95% intervals; every face must show those too, the same.
 
 The reference is the engine's structured result of each statement (``StatementResult``),
-shown in the sheet's notation: the value to the sheet's digits, the uncertainty to two
-figures. Each face is read back from the text it shows (here, in the test only: the package
-itself never reads a face back). Units are compared by what they mean (SI factor and
-dimension, through the sheet's unit registry), since each face spells them its own way.
+shown in the sheet's notation: the value and the interval ends to the sheet's digits, the
+uncertainty to two figures. Each face is read back from the text it shows (here, in the
+test only: the package itself never reads a face back). Units are compared by what they
+mean (SI factor and dimension, through the sheet's unit registry), since each face spells
+them its own way.
 The app's panel face is tested with the app (tests/app).
 """
 
@@ -15,10 +17,11 @@ from __future__ import annotations
 import json
 import math
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from decimal import Decimal
 from html import unescape
 from pathlib import Path
+from typing import Any
 
 import pytest
 
@@ -26,6 +29,7 @@ import worksheet
 from worksheet.cli import main
 from worksheet.constants import load_dataset
 from worksheet.engine import StatementResult
+from worksheet.engine.distributions import SampledSummary
 from worksheet.engine.formatting import format_number, format_uncertainty
 from worksheet.export import export_run
 from worksheet.runner import SheetRun, run_text
@@ -36,13 +40,23 @@ SHEETS = sorted((ROOT / "sheets").glob("*.sheet.md"))
 QUANTITY_KINDS = ("definition", "display", "estimate", "scaling")
 
 
+Spread = tuple[tuple[str, str, str], ...]
+"""A sampled quantity's intervals as shown: (content in percent, low end, high end)."""
+
+
 @dataclass(frozen=True)
 class Shown:
-    """A quantity as one face shows it: value and uncertainty as decimal text, a unit."""
+    """A quantity as one face shows it: value and uncertainty as decimal text, a unit.
+
+    ``intervals`` are a sampled quantity's, in the value's unit (None: the face shows none).
+    ``median`` is for faces that state the median apart from the value (``--json``, the
+    API); a face that shows one number for both leaves it None."""
 
     value: str
     uncertainty: str | None
     unit: str
+    intervals: Spread | None = None
+    median: str | None = None
 
 
 def _decimal(text: str) -> Decimal:
@@ -74,7 +88,30 @@ def reference(result: StatementResult, digits: int) -> Shown:
     """The structured result in the sheet's notation: what every face must show."""
     assert result.value is not None
     u = format_uncertainty(result.uncertainty) if result.uncertainty is not None else None
-    return Shown(format_number(result.value, digits), u, result.unit or "")
+    value = format_number(result.value, digits)
+    if not isinstance(result.sampled, SampledSummary):
+        return Shown(value, u, result.unit or "")
+    summary = result.sampled
+    assert u is None and summary.median == result.value, result
+    assert [i.content for i in summary.intervals] == [0.68, 0.95], result
+    return Shown(value, None, result.unit or "", spread_of(summary.intervals, digits))
+
+
+def spread_of(intervals: Any, digits: int) -> Spread:
+    """Structured intervals (``Interval`` objects or their ``--json`` dicts) as shown."""
+    rows = [i if isinstance(i, dict) else vars(i) for i in intervals]
+    return tuple(
+        (
+            f"{i['content'] * 100:.0f}",
+            format_number(i["low"], digits),
+            format_number(i["high"], digits),
+        )
+        for i in rows
+    )
+
+
+def sampled_lines(run: SheetRun) -> list[int]:
+    return [r.line for r in quantities(run) if isinstance(r.sampled, SampledSummary)]
 
 
 def quantities(run: SheetRun) -> list[StatementResult]:
@@ -87,19 +124,39 @@ def quantities(run: SheetRun) -> list[StatementResult]:
 
 # --- the result block and the Markdown report: the recorded line --------------------------
 
+_NUMBER = r"-?[0-9.]+(?:e-?[0-9]+)?"
+_INTERVAL = rf"(\d+)%: ({_NUMBER}) \.\. ({_NUMBER})"
+_SPREAD = re.compile(rf"^{_INTERVAL}(?:, {_INTERVAL})*(?=;|$)")
 _RECORD_VALUE = re.compile(
-    r"(?P<value>-?[0-9.]+(?:e-?[0-9]+)?)(?: \+- (?P<u>[0-9.]+(?:e-?[0-9]+)?))?"
-    r"(?: (?P<unit>(?!\()[^\s]+))?(?: \* .*)?$"
+    rf"(?P<value>{_NUMBER})(?: \+- (?P<u>{_NUMBER}))?"
+    r"(?: (?P<unit>(?!\()[^\s,]+))?(?:, (?P<spread>.*)|(?: \* .*)?)$"
 )
 
 
 def read_record(line: str) -> Shown:
     """``T_H = 2.454e11 +- 5.4e6 K (note)``: the number after the last `` = `` (of the line
-    without its closing note, which may hold ``=`` too)."""
+    without its closing note, which may hold ``=`` too); a sampled quantity's intervals
+    follow its unit: ``d = 0.0444 pc, 68%: 0.0379 .. 0.0529, 95%: 0.0325 .. 0.0606``."""
     tail = _without_note(line).rsplit(" = ", 1)[1]
     match = _RECORD_VALUE.match(tail)
     assert match is not None, line
-    return Shown(match["value"], match["u"], match["unit"] or "")
+    spread = None
+    if match["spread"] is not None:
+        spread = read_spread(match["spread"])
+        assert spread is not None and _spread_text(spread) == match["spread"], line
+    return Shown(match["value"], match["u"], match["unit"] or "", spread)
+
+
+def read_spread(text: str) -> Spread | None:
+    """``68%: a .. b, 95%: c .. d`` at the start of a text (up to ``;`` or its end)."""
+    match = _SPREAD.match(text)
+    if match is None:
+        return None
+    return tuple((m[1], m[2], m[3]) for m in re.finditer(_INTERVAL, match[0]))
+
+
+def _spread_text(spread: Spread) -> str:
+    return ", ".join(f"{content}%: {low} .. {high}" for content, low, high in spread)
 
 
 def _without_note(line: str) -> str:
@@ -223,6 +280,17 @@ def latex_items(text: str) -> dict[int, str]:
     return found
 
 
+def latex_spreads(text: str) -> dict[int, Spread]:
+    """The intervals a step's note (``\\emph{68\\%: a .. b, ...}`` under it) shows, by line."""
+    found = {}
+    for match in re.finditer(
+        r"^\\item\[\{\\footnotesize (\d+)\}\] [^\n]*\\newline\n\\emph\{(.*)\}$", text, re.MULTILINE
+    ):
+        if (spread := read_spread(match[2].replace("\\%", "%"))) is not None:
+            found[int(match[1])] = spread
+    return found
+
+
 # --- HTML ----------------------------------------------------------------------------------
 
 _HTML_VALUE = re.compile(
@@ -255,6 +323,19 @@ def html_rows(page: str) -> dict[int, str]:
     return found
 
 
+def html_spreads(page: str) -> dict[int, Spread]:
+    """The intervals of each step row's note (``<span class="note">68%: a .. b, ...``)."""
+    found = {}
+    for match in re.finditer(
+        r'<tr class="step status-ok"><td class="line">line (\d+)</td>.*?'
+        r'<td class="status">(?:[^<]*<br>)?<span class="note">(.*?)</span></td></tr>',
+        page,
+    ):
+        if (spread := read_spread(unescape(match[2]))) is not None:
+            found[int(match[1])] = spread
+    return found
+
+
 def html_value(right: str) -> Shown:
     if right.startswith("record:"):
         return read_record(right[len("record:") :])
@@ -279,6 +360,17 @@ def html_value(right: str) -> Shown:
 def assert_same(face: str, line: int, shown: Shown, expected: Shown, units: Units) -> None:
     where = f"{face}, line {line}"
     assert _same_number(shown.value, expected.value), (where, shown, expected)
+    if shown.median is not None:
+        assert _same_number(shown.median, expected.value), (where, shown, expected)
+    if expected.intervals is None:
+        assert shown.intervals is None, (where, shown, expected)
+    else:
+        assert shown.intervals is not None, (where, shown, expected)
+        assert len(shown.intervals) == len(expected.intervals), (where, shown, expected)
+        for ends, want in zip(shown.intervals, expected.intervals, strict=True):
+            assert ends[0] == want[0], (where, shown, expected)
+            assert _same_number(ends[1], want[1]), (where, shown, expected)
+            assert _same_number(ends[2], want[2]), (where, shown, expected)
     if expected.uncertainty is None:
         assert shown.uncertainty is None, (where, shown, expected)
     else:
@@ -295,6 +387,8 @@ def runs() -> dict[str, SheetRun]:
 def test_there_are_demo_sheets_with_quantities(runs):
     assert len(runs) >= 3
     assert all(len(quantities(run)) >= 5 for run in runs.values())
+    # Sampled quantities (ranged inputs and what is derived from them) are among them.
+    assert len(sampled_lines(runs["detection-rate.sheet.md"])) >= 5
 
 
 @pytest.mark.parametrize("path", SHEETS, ids=lambda p: p.name)
@@ -311,14 +405,19 @@ def test_issue10_every_face_shows_the_same_quantities(path, runs, capsys):
     assert main(["check", str(path), "--json"]) == 0
     (document,) = [json.loads(line) for line in capsys.readouterr().out.splitlines() if line]
     by_line = {s["line"]: s for s in document["statements"]}
-    faces["--json"] = {
-        line: Shown(
-            format_number(by_line[line]["value"], digits),
-            format_uncertainty(u) if (u := by_line[line].get("uncertainty")) is not None else None,
-            by_line[line]["unit"] or "",
+    faces["--json"] = {}
+    for line in expected:
+        statement = by_line[line]
+        u = statement.get("uncertainty")
+        shown = Shown(
+            format_number(statement["value"], digits),
+            format_uncertainty(u) if u is not None else None,
+            statement["unit"] or "",
         )
-        for line in expected
-    }
+        if (sampled := statement.get("sampled")) is not None:
+            median = format_number(sampled["median"], digits)
+            shown = replace(shown, intervals=spread_of(sampled["intervals"], digits), median=median)
+        faces["--json"][line] = shown
 
     api = {q.line: q for q in worksheet.load(path).run()}
     faces["Python API"] = {}
@@ -326,7 +425,13 @@ def test_issue10_every_face_shows_the_same_quantities(path, runs, capsys):
         item = api[line]
         assert item.value is not None
         u = format_uncertainty(item.uncertainty) if item.uncertainty is not None else None
-        faces["Python API"][line] = Shown(format_number(item.value, digits), u, item.unit or "")
+        shown = Shown(format_number(item.value, digits), u, item.unit or "")
+        if item.sampled is not None:
+            median = format_number(item.sampled.median, digits)
+            shown = replace(
+                shown, intervals=spread_of(item.sampled.intervals, digits), median=median
+            )
+        faces["Python API"][line] = shown
         # The pint Quantity means the value and unit of the structured result (in SI).
         result = next(r for r in run.results if r.line == line)
         assert result.value is not None
@@ -334,10 +439,17 @@ def test_issue10_every_face_shows_the_same_quantities(path, runs, capsys):
         si = item.quantity.to_base_units().magnitude
         assert math.isclose(si, result.value * factor, rel_tol=1e-9), line
 
-    latex = latex_items(export_run(run, "latex", path.name)[0])
-    faces["LaTeX"] = {line: latex_value(latex[line]) for line in expected}
-    page = html_rows(export_run(run, "html", path.name)[0])
-    faces["HTML"] = {line: html_value(page[line]) for line in expected}
+    tex = export_run(run, "latex", path.name)[0]
+    latex, latex_spread = latex_items(tex), latex_spreads(tex)
+    faces["LaTeX"] = {
+        line: replace(latex_value(latex[line]), intervals=latex_spread.get(line))
+        for line in expected
+    }
+    html = export_run(run, "html", path.name)[0]
+    page, html_spread = html_rows(html), html_spreads(html)
+    faces["HTML"] = {
+        line: _with_spread(html_value(page[line]), html_spread.get(line)) for line in expected
+    }
     report = markdown_lines(export_run(run, "md", path.name)[0])
     faces["Markdown"] = {line: read_record(report[line]) for line in expected}
 
@@ -347,8 +459,25 @@ def test_issue10_every_face_shows_the_same_quantities(path, runs, capsys):
             assert_same(face, line, value, expected[line], units)
 
 
+def _with_spread(shown: Shown, spread: Spread | None) -> Shown:
+    """A row's value with its note's intervals (a row shown as its record has them already)."""
+    if spread is None:
+        return shown
+    assert shown.intervals is None, shown
+    return replace(shown, intervals=spread)
+
+
+def _caught(shown: Shown, expected: Shown) -> bool:
+    try:
+        assert_same("face", 30, shown, expected, Units("CODATA2022"))
+    except AssertionError:
+        return True
+    return False
+
+
 def test_issue10_a_face_that_misstates_a_number_is_caught():
-    """The readers above are strict: one digit or one unit off is a difference."""
+    """The readers above are strict: one digit or one unit off is a difference, in a
+    single value and in a sampled quantity's median, interval ends, contents and unit."""
     units = Units("CODATA2022")
     right = Shown("1.227e11", "2.8e6", "K")
     assert _same_number("1.227e11", right.value)
@@ -359,6 +488,33 @@ def test_issue10_a_face_that_misstates_a_number_is_caught():
         Shown("1.227e11", "2800000", "K^1")
     )
     assert read_record("t = 2.665e12 yr * (M / 1e12 kg)^3") == Shown("2.665e12", None, "yr")
+
+    # A sampled quantity: each interval end, its content and the unit are compared.
+    record = "d = 0.0444 pc, 68%: 0.0379 .. 0.0529, 95%: 0.0325 .. 0.0606 (median of 100 samples)"
+    sampled = Shown("0.0444", None, "pc", (("68", "0.0379", "0.0529"), ("95", "0.0325", "0.0606")))
+    assert read_record(record) == sampled and not _caught(sampled, sampled)
+    assert _caught(read_record(record.replace("0.0529", "0.0528")), sampled)  # an end off
+    assert _caught(read_record(record.replace("0.0379", "0.03790")), sampled)  # padded
+    assert _caught(read_record(record.replace("95%", "90%")), sampled)  # another content
+    assert _caught(read_record(record.replace(" pc,", " km,")), sampled)  # another unit
+    assert _caught(read_record(record.replace(", 95%: 0.0325 .. 0.0606", "")), sampled)
+    assert _caught(replace(sampled, intervals=None), sampled)  # the intervals left out
+    assert _caught(sampled, replace(sampled, intervals=None))  # intervals on a single value
+    assert _caught(replace(sampled, median="0.0445"), sampled)  # --json: median apart from value
+    with pytest.raises(AssertionError):
+        read_record(record.replace("0.0606", "0.0606 or so"))  # nothing after the intervals
+    latex = (
+        "\\item[{\\footnotesize 30}] \\(\\displaystyle d = \\qty{0.0444}{\\mathrm{pc}}\\)"
+        "\\newline\n\\emph{68\\%: 0.0379 .. 0.0529, 95\\%: 0.0325 .. 0.0607; median}\n"
+    )
+    assert latex_spreads(latex) == {30: (("68", "0.0379", "0.0529"), ("95", "0.0325", "0.0607"))}
+    assert _caught(replace(sampled, intervals=latex_spreads(latex)[30]), sampled)
+    html = (
+        '<tr class="step status-ok"><td class="line">line 30</td><td class="math">d</td>'
+        '<td class="math">= 0.0444</td><td class="status"><span class="note">'
+        "68%: 0.0378 .. 0.0529, 95%: 0.0325 .. 0.0606; median</span></td></tr>\n"
+    )
+    assert _caught(replace(sampled, intervals=html_spreads(html)[30]), sampled)
 
 
 GUARDED = """\
