@@ -29,7 +29,7 @@ from worksheet.export.latex_math import (
 )
 from worksheet.export.latex_messages import message_latex
 from worksheet.export.latex_notes import note_latex
-from worksheet.export.latex_text import escape_text, texttt
+from worksheet.export.latex_text import escape_code, escape_text, texttt
 from worksheet.export.latex_units import unit_latex, unit_text_latex
 from worksheet.export.pgf_plot import PACKAGES as PLOT_PACKAGES
 from worksheet.export.pgf_plot import plot_pgfplots, title_latex
@@ -312,6 +312,8 @@ def step_text(step: Step, digits: int) -> str:
     table = result_table(result, digits)
     if table is not None:
         return head + "\n" + sweep_table_latex(table)
+    if result.kind == "use" and result.imported:
+        return head + "\\newline\n" + digest_latex(result.imported["sha256"]) + "\n"
     if result.message:  # an estimate that is not unique: the free groups, as its note says
         return head + "\\newline\n" + message_latex(result.message) + "\n"
     if result.record:
@@ -322,6 +324,25 @@ def step_text(step: Step, digits: int) -> str:
             + "\n"
         )
     return head + "\n"
+
+
+DIGEST_GROUP = 8
+"""Hex digits between the break points of a typeset digest."""
+
+
+def digest_latex(digest: str) -> str:
+    """A used sheet's sha256 in small monospace, every digit kept, breakable between groups
+    of eight (64 digits in one piece run past the line).
+
+    >>> digest_latex("0123456789abcdef01")
+    '{\\\\footnotesize sha256 \\\\texttt{01234567\\\\allowbreak{}89abcdef\\\\allowbreak{}01}}'
+    """
+    groups = [digest[i : i + DIGEST_GROUP] for i in range(0, len(digest), DIGEST_GROUP)]
+    return (
+        "{\\footnotesize sha256 \\texttt{"
+        + "\\allowbreak{}".join(escape_code(group) for group in groups)
+        + "}}"
+    )
 
 
 def _cell_latex(cell: str) -> str:

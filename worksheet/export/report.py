@@ -10,6 +10,8 @@ import math
 from dataclasses import dataclass
 from decimal import Decimal
 
+import sympy
+
 from worksheet.constants import Dataset, load_dataset
 from worksheet.document import CalcCell, NoteBlock
 from worksheet.engine import SourceStatement, StatementResult
@@ -237,10 +239,14 @@ def _parse(source: SourceStatement) -> t.AnyStatement | None:
 
 
 def constants_used(steps: list[Step], dataset: Dataset) -> tuple[ConstantRow, ...]:
-    """Dataset constants named in the sheet, then dataset units written in brackets.
+    """Dataset constants named in the sheet or reached through its expressions, then
+    dataset units written in brackets.
 
-    A name counts when it is a NAME token of a statement; names the sheet declares itself
-    (``G : [...]`` keeps G symbolic) and relation parameters do not count. Order: first use.
+    A name counts when it is a NAME token of a statement, or a constant symbol of the
+    expression the engine evaluated for it (``result.form``): a call of a relation another
+    sheet lends (``T_H(1e12 [kg])``) is expanded there, so the constants of its body count
+    too. Names the sheet declares itself (``G : [...]`` keeps G symbolic) and relation
+    parameters do not count. Order: first use.
     """
     declared = {step.tree.name for step in steps if isinstance(step.tree, t.Declaration)}
     seen: dict[str, ConstantRow] = {}
@@ -249,7 +255,7 @@ def constants_used(steps: list[Step], dataset: Dataset) -> tuple[ConstantRow, ..
         try:
             tokens = tokenize(step.source.text, step.source.line)
         except WorksheetError:
-            continue
+            tokens = []
         for token in tokens:
             if token.kind is Kind.NAME:
                 if token.text in dataset.constants and token.text not in declared | params:
@@ -257,7 +263,20 @@ def constants_used(steps: list[Step], dataset: Dataset) -> tuple[ConstantRow, ..
             elif token.kind is Kind.UNIT:
                 for name in _unit_names(token.text):
                     _add_unit(seen, dataset, name)
+        for name in _evaluated_constants(step.result, dataset):
+            if name not in declared:
+                _add_constant(seen, dataset, name, as_unit=False)
     return tuple(seen.values())
+
+
+def _evaluated_constants(result: StatementResult, dataset: Dataset) -> list[str]:
+    """Constant symbols of the expression the engine evaluated, by name (sorted: a set)."""
+    symbols = getattr(result.form, "free_symbols", ())
+    return sorted(
+        symbol.name
+        for symbol in symbols
+        if isinstance(symbol, sympy.Symbol) and symbol.name in dataset.constants
+    )
 
 
 def _unit_names(text: str) -> list[str]:
