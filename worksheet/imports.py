@@ -124,6 +124,9 @@ class SheetImports:
                     "sha256": exports.digest,
                     "names": sorted(name for name, item in lent.items() if item.brought_in),
                 },
+                # Every name the lent definitions read (constants among them), so the
+                # exports' table of constants lists those reached only through the use.
+                detail=tuple(sorted({read for name in lent for read in reads.get(name, ())})),
             )
         return ImportScope(names, results, failed, tuple(token)), reads
 

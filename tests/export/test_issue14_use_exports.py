@@ -139,3 +139,46 @@ def test_issue14_use_lines_wrap_in_latex(tmp_path, exports):
     assert done.returncode == 0, done.stdout[-3000:]
     log = (tmp_path / "burst.log").read_text(encoding="latin-1")
     assert overfull_boxes(log) == []
+
+
+REST_ENERGY = f"""\
+---
+title: Electron rest energy
+constants: {DATASET}
+---
+
+```calc
+E_e = m_e*c^2 in [keV]   # rest energy: E = m c^2 (Einstein 1905, Ann. Phys. 18, 639)
+```
+"""
+
+USES_A_VALUE = f"""\
+---
+title: Twice the rest energy
+constants: {DATASET}
+---
+
+```calc
+use E_e from "rest.sheet.md"
+check_pair = 2*E_e in [keV]
+```
+"""
+
+
+def test_issue14_constants_behind_an_imported_value_are_listed(tmp_path):
+    """A value brought in by name (not a relation call) still lists the constants it is
+    computed from: m_e and c, read in the used sheet's own statement."""
+    (tmp_path / "rest.sheet.md").write_text(REST_ENERGY, encoding="utf-8")
+    path = tmp_path / "pair.sheet.md"
+    path.write_text(USES_A_VALUE, encoding="utf-8")
+    done = SheetRunner(path).run(parse_document(USES_A_VALUE))
+    assert done.all_hold, [r.message for r in done.results if r.status != "ok"]
+    # 2 m_e c^2 = 1021.998 keV (CODATA 2018: m_e c^2 = 0.51099895000 MeV).
+    value = next(r for r in done.results if r.name == "check_pair").value
+    assert value == pytest.approx(1021.9979, rel=1e-7)
+    for fmt in FORMATS:
+        text = export_run(done, fmt, path.name)[0]
+        tail = text[text.rfind("onstants") :]  # the closing constants section
+        for symbol in ("m_e", "c"):
+            value_text = load_dataset(DATASET).constants[symbol].value
+            assert value_text in tail, (fmt, symbol)

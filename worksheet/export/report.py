@@ -245,8 +245,10 @@ def constants_used(steps: list[Step], dataset: Dataset) -> tuple[ConstantRow, ..
     A name counts when it is a NAME token of a statement, or a constant symbol of the
     expression the engine evaluated for it (``result.form``): a call of a relation another
     sheet lends (``T_H(1e12 [kg])``) is expanded there, so the constants of its body count
-    too. Names the sheet declares itself (``G : [...]`` keeps G symbolic) and relation
-    parameters do not count. Order: first use.
+    too; and every constant the definitions a ``use`` line brings in read (its ``detail``),
+    so a value or relation reached only through a check still counts. Names the sheet
+    declares itself (``G : [...]`` keeps G symbolic) and relation parameters do not count.
+    Order: first use.
     """
     declared = {step.tree.name for step in steps if isinstance(step.tree, t.Declaration)}
     seen: dict[str, ConstantRow] = {}
@@ -266,6 +268,10 @@ def constants_used(steps: list[Step], dataset: Dataset) -> tuple[ConstantRow, ..
         for name in _evaluated_constants(step.result, dataset):
             if name not in declared:
                 _add_constant(seen, dataset, name, as_unit=False)
+        if step.result.kind == "use" and isinstance(step.result.detail, tuple):
+            for name in step.result.detail:  # what the definitions it brings in read
+                if name in dataset.constants and name not in declared:
+                    _add_constant(seen, dataset, name, as_unit=False)
     return tuple(seen.values())
 
 
