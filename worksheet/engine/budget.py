@@ -138,6 +138,12 @@ def _answer(function: Callable[..., Any], args: tuple[Any, ...]) -> tuple[str, A
         return "ok", function(*args)
     except MemoryError:
         return "memory", ""
+    except SystemError as err:
+        # Under the address-space cap a C extension's failed allocation can surface as
+        # "returned NULL without setting an exception" instead of a MemoryError.
+        if "without setting an exception" in str(err):
+            return "memory", ""
+        return "error", f"{type(err).__name__}: {err}"
     except EvaluationError as err:
         return "error", err.message
     except RecursionError:

@@ -264,6 +264,8 @@ def _guard(expr: sympy.Expr, value: float, values: Mapping) -> tuple[Any, str | 
     except (ValueError, ZeroDivisionError, TypeError):
         return None, None
     mp = _MP.mp
+    if not isinstance(precise, mp.mpf):  # e.g. the square root of a negative number
+        raise EvaluationError(f"the value is not a real number (about {mp.nstr(precise, 4)})")
     if not mp.isfinite(precise):
         return precise, None
     if precise != 0 and abs(mp.mag(precise)) > MAX_RECORDED_BITS:

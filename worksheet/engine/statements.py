@@ -761,6 +761,13 @@ class StatementEvaluator:
             shown = (x - offset) / factor
             return format_number(shown, max(digits, 6)) + (f" {unit}" if unit else "")
 
+        for side, value in (("left", a), ("right", b)):
+            if not math.isfinite(value):
+                raise EvaluationError(
+                    f"the {side} side of the claim is {value} in double precision (beyond "
+                    "about 1e308); compare quantities within that range, e.g. in a larger unit",
+                    stmt.line,
+                )
         detail = f"left {show(a)}, right {show(b)}"
         op = stmt.op
         if op == "==":
@@ -791,7 +798,7 @@ class StatementEvaluator:
                 raise EvaluationError(
                     "'~' compares orders of magnitude of positive values", stmt.line
                 )
-            spread = abs(math.log10(a / b))
+            spread = abs(math.log10(a) - math.log10(b))  # a / b may leave the double range
             return spread <= 0.5, f"{detail}, {spread:.2f} decades apart"
         compare = {"<": a < b, "<=": a <= b, ">": a > b, ">=": a >= b}
         return compare[op], detail
