@@ -36,3 +36,12 @@ def test_issue11_square_root_of_a_negative_sine_is_not_a_real_number(run_sheet):
     for result in (shown, claim):
         assert result.status == "error"
         assert "not a real number" in result.message, result.message
+
+
+def test_issue11_refused_power_of_a_long_exact_base_is_described_by_its_size(run_sheet):
+    # 878.878^878 is an exact rational of about 2585 digits (878 * log10(878.878) = 2585.1):
+    # the refusal names its order of magnitude instead of failing to print it.
+    (power,) = run_sheet("(878.878 ^ 878)^400")
+    assert power.status == "error"
+    assert "(about 10^2585)^400 would have about" in power.message
+    assert "internal error" not in power.message

@@ -413,11 +413,31 @@ def _guard_exact_power(base: sympy.Expr, exponent: sympy.Expr, node: t.Power) ->
     digits = float(min(magnitude, 10**9)) * math.log10(size)
     if digits > MAX_EXACT_DIGITS:
         raise BudgetError(
-            f"{base}^{exponent} would have about {int(digits)} digits; exact powers are limited "
-            f"to {MAX_EXACT_DIGITS} digits",
+            f"{_power_text(base, exponent)} would have about "
+            f"{int(digits)} digits; exact powers are limited to {MAX_EXACT_DIGITS} digits",
             node.line,
             node.column,
         )
+
+
+def _short_rational(value: sympy.Rational) -> str:
+    """An exact number for a message: as written when short, else its order of magnitude
+    (printing a 5000-digit integer is refused by Python and unreadable anyway).
+
+    >>> _short_rational(sympy.Rational(3, 2)), _short_rational(sympy.Integer(10) ** 80)
+    ('3/2', 'about 10^80')
+    """
+    p, q = abs(int(value.p)), int(value.q)
+    if max(p, q) < 10**30:
+        return str(value)
+    sign = "-" if value.p < 0 else ""
+    return f"about {sign}10^{round(math.log10(p) - math.log10(q))}"
+
+
+def _power_text(base: sympy.Rational, exponent: sympy.Rational) -> str:
+    """``2^10000``, or ``(about 10^2585)^400`` where the base is too long to print."""
+    shown = [_short_rational(base), _short_rational(exponent)]
+    return "^".join(f"({text})" if " " in text or "/" in text else text for text in shown)
 
 
 # Used by symbolic verbs; kept here so tests can reach them through one module.
