@@ -5,12 +5,18 @@ from __future__ import annotations
 import json
 import random
 import sys
+from fractions import Fraction
 from pathlib import Path
 
 import pytest
+import sympy
+from hypothesis import given
+from hypothesis import strategies as st
 
 from worksheet import cli
 from worksheet.engine import fast_numeric
+from worksheet.engine.numeric import FLOAT
+from worksheet.syntax import tree as t
 
 SHEETS = sorted((Path(__file__).parents[2] / "sheets").glob("*.sheet.md"))
 UNITS = ["m", "km", "s", "kg", "K", "eV", "m/s", "erg/s", "pc", "cm^2", "J", "W"]
@@ -115,3 +121,17 @@ def test_issue12_fast_path_is_taken_and_symbolic_is_lazy(tmp_path, capsys, monke
     given = run.results[0]
     assert isinstance(given.form, fast_numeric.LazyForm)
     assert given.symbolic == "3*[m]/2"  # as the sympy path prints it
+
+
+@given(
+    st.fractions(max_denominator=10**40)
+    | st.builds(Fraction, st.integers(-(10**400), 10**400), st.integers(1, 10**30))
+)
+def test_issue12_walk_numbers_are_the_doubles_of_sympy_rationals(value) -> None:
+    node = t.Number(line=1, column=1, value=value, literal=str(value))
+    try:
+        walked = fast_numeric._number(node)
+    except OverflowError:
+        walked = None  # the walk gives up; the sympy path says what it gives
+    if walked is not None:
+        assert walked == FLOAT.number(sympy.Rational(value.numerator, value.denominator))
