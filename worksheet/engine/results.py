@@ -8,6 +8,21 @@ from functools import cached_property
 from typing import Any
 
 
+class LazyForm:
+    """A symbolic form built only when it is printed (the float fast path has none)."""
+
+    __slots__ = ("_build", "_expr")
+
+    def __init__(self, build: Any):
+        self._build = build
+        self._expr: Any = None
+
+    def expr(self) -> Any:
+        if self._expr is None:
+            self._expr = self._build()
+        return self._expr
+
+
 @dataclass(frozen=True)
 class StatementResult:
     """The outcome of one statement, as recorded in the sheet and printed by ``--json``.
@@ -47,7 +62,8 @@ class StatementResult:
             return self.symbolic_text
         from worksheet.engine.formatting import format_expr
 
-        return format_expr(self.form)
+        form = self.form.expr() if isinstance(self.form, LazyForm) else self.form
+        return format_expr(form)
 
     def to_json(self) -> dict[str, Any]:
         data: dict[str, Any] = {}

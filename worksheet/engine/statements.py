@@ -13,6 +13,7 @@ from worksheet.engine import symbolic_ops as ops
 from worksheet.engine.bindings import Binding, Origin, symbol_for, unit_symbol
 from worksheet.engine.context import Context
 from worksheet.engine.estimate import Outcome, solve_exponents
+from worksheet.engine.fast_numeric import fast_quantity
 from worksheet.engine.figures import (
     Figures,
     compute_figures,
@@ -221,8 +222,15 @@ class StatementEvaluator:
         own, stated = binding.name, binding.input_uncertainty
         return lambda key: stated if key == own else self._input_uncertainty(key)
 
-    def quantity(self, tr: Translator, node: t.Expr) -> Quantity:
-        """Translate and, where every name has a value, compute the SI number."""
+    def quantity(self, tr: Translator, node: t.Expr, fast: bool | None = None) -> Quantity:
+        """Translate and, where every name has a value, compute the SI number.
+
+        ``fast`` tries the float walk first (``fast_numeric``; True also allows names).
+        """
+        if fast is not None:
+            quick = fast_quantity(self, tr, node, names=fast)
+            if quick is not None:
+                return quick
         lone = _lone_unit_value(node)
         if lone is not None:
             number, unit_node = lone
@@ -350,7 +358,7 @@ class StatementEvaluator:
             return ranged_definition(self, stmt)
         self._refuse_constant_name(stmt.name, stmt)
         tr = self.translator()
-        quantity = self.quantity(tr, stmt.expr)
+        quantity = self.quantity(tr, stmt.expr, fast=False)
         typed = quantity.typed
         deps = tuple(dict.fromkeys(tr.used))
         origin = Origin.DERIVED if deps else Origin.GIVEN
@@ -724,8 +732,8 @@ class StatementEvaluator:
         if stmt.fraction is not None:
             return sampled_check(self, stmt)
         tr = self.translator()
-        left = self.quantity(tr, stmt.left)
-        right = self.quantity(tr, stmt.right)
+        left = self.quantity(tr, stmt.left, fast=True)
+        right = self.quantity(tr, stmt.right, fast=True)
         if left.typed.dim != right.typed.dim and not (left.si == 0 or right.si == 0):
             hint = temperature_energy_hint(stmt.left, left.typed, stmt.right, right.typed)
             raise DimensionError(
