@@ -29,8 +29,6 @@ from worksheet.app.lazy_service import LazyRunService
 from worksheet.app.pauses import settle_long_lived
 from worksheet.app.recovery import newer_recovery, remove_recovery, write_recovery
 from worksheet.app.screens.choice import ChoiceScreen
-from worksheet.app.screens.finder import ConstantFinder
-from worksheet.app.screens.help import HelpScreen
 from worksheet.app.session import SheetSession
 from worksheet.app.theme_files import (
     FALLBACK,
@@ -61,6 +59,8 @@ DIALOG_ACTIONS = frozenset({"leave"})
 # Below this many columns the side panels are hidden; the panel key shows them instead of
 # the sheet (at 80 columns a side panel would leave neither the sheet nor the numbers room).
 NARROW_WIDTH = 100
+# The status line while the first run is going: the result lines shown are the file's.
+RECORDED_NOTICE = "results as recorded in the file (pending); computing ..."
 
 
 def summary(results: Iterable[StatementResult]) -> str:
@@ -141,6 +141,7 @@ class WorksheetApp(App[int]):
         # A new sheet starts in its empty calc cell, so the first keys typed go into it.
         first = 0 if self.session.saved is not None else self._first_calc_block()
         await self._show_document(first, run=False)
+        self.say(RECORDED_NOTICE)
         self.call_after_refresh(self.start_run)
         self.set_interval(self.RECOVERY_SECONDS, self.keep_recovery)
         if self.problems:
@@ -282,7 +283,8 @@ class WorksheetApp(App[int]):
             self._run_timer.stop()
             self._run_timer = None
         self._generation += 1
-        self.say("computing ...")
+        # Until the first run is back, the lines on screen are the file's, not computed.
+        self.say(RECORDED_NOTICE if self.outcome is None else "computing ...")
         # A run going on for long (a verb in its budget) would hold this one back.
         service = self.service.started
         if service is not None and service.give_up_slow_run(self.GIVE_UP_AFTER):
@@ -441,6 +443,8 @@ class WorksheetApp(App[int]):
             )
 
     def action_show_help(self) -> None:
+        from worksheet.app.screens.help import HelpScreen  # dialogs load when first opened
+
         self.push_screen(HelpScreen())
 
     def action_rerun(self) -> None:
@@ -495,6 +499,8 @@ class WorksheetApp(App[int]):
                 return
             target.focus()
             target.insert(text)
+
+        from worksheet.app.screens.finder import ConstantFinder  # loads when first opened
 
         self.push_screen(ConstantFinder(load_dataset(dataset_name)), insert)
 
