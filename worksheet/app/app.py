@@ -140,9 +140,9 @@ class WorksheetApp(App[int]):
         # would otherwise compete with the first paint for the interpreter.
         # A new sheet starts in its empty calc cell, so the first keys typed go into it.
         first = 0 if self.session.saved is not None else self._first_calc_block()
-        await self._show_document(first, run=False)
+        await self._show_document(first, run=False, source_notes=True)
         self.say(RECORDED_NOTICE)
-        self.call_after_refresh(self.start_run)
+        self.call_after_refresh(self._after_first_paint)
         self.set_interval(self.RECOVERY_SECONDS, self.keep_recovery)
         if self.problems:
             self.say("; ".join(self.problems), problem=True)
@@ -161,6 +161,11 @@ class WorksheetApp(App[int]):
                 ),
                 lambda answer: self._recovery_answer(answer, recovered),
             )
+
+    async def _after_first_paint(self) -> None:
+        """Start the engine (in its thread), then render the notes while it loads."""
+        self.start_run()
+        await self.sheet.render_notes()
 
     def _install_themes(self) -> None:
         loaded = load_themes()
@@ -232,7 +237,11 @@ class WorksheetApp(App[int]):
         self.query_one("#title", Static).update(text, layout=False)  # one line high
 
     async def _show_document(
-        self, focus: int | None, cursor: tuple[int, int] | None = None, run: bool = True
+        self,
+        focus: int | None,
+        cursor: tuple[int, int] | None = None,
+        run: bool = True,
+        source_notes: bool = False,
     ) -> None:
         """Rebuild every cell view from the session and run the sheet (at once by default).
 
@@ -242,7 +251,7 @@ class WorksheetApp(App[int]):
         assert self.session is not None
         sheet = self.sheet
         scrolled = sheet.scroll_y
-        await sheet.rebuild(self.session.doc)
+        await sheet.rebuild(self.session.doc, source_notes=source_notes)
         view = sheet.focus_block(focus, cursor) if focus is not None else None
 
         def back_in_place() -> None:
