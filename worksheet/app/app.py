@@ -107,6 +107,9 @@ class WorksheetApp(App[int]):
         self._notice = ""  # the last cell operation, kept in the status line
         # Where the sheet's focus was when the panel key moved it to the side panel.
         self._place: tuple[Widget, float] | None = None
+        # Before the first stylesheet pass: a theme set after mounting would style every
+        # widget twice before the first paint.
+        self._install_themes()
 
     # ----- building the screen
 
@@ -128,7 +131,6 @@ class WorksheetApp(App[int]):
         return {name: FALLBACK[source] for name, source in STATE_DEFAULTS.items()}
 
     async def on_mount(self) -> None:
-        self._install_themes()
         self.watch(self.screen, "focused", self._focus_moved, init=False)
         try:
             self.session = SheetSession.open(self.sheet_path)
