@@ -85,3 +85,12 @@ def test_issue12_first_paint_modules_do_not_import_sympy() -> None:
     )
     assert done.returncode == 0, done.stderr
     assert done.stdout.strip() == "[]"
+
+
+def test_issue12_note_source_joins_paragraph_lines_and_keeps_blocks() -> None:
+    from worksheet.app.widgets.note_cell import source_text
+
+    shown = source_text("# Budget\n\nA long\nparagraph here.\n\n- one\n- two\n1. first\n")
+    assert shown.plain == "Budget\n\nA long paragraph here.\n\n- one\n- two\n1. first"
+    heading = shown.plain.index("Budget")
+    assert any(span.style == "bold" and span.start == heading for span in shown.spans)
