@@ -9,6 +9,7 @@ from pathlib import Path
 
 from worksheet.app.app import RECORDED_NOTICE, WorksheetApp
 from worksheet.app.widgets.calc_cell import CalcCellView
+from worksheet.app.widgets.note_cell import NoteCellView
 from worksheet.app.widgets.result_lines import STATUS_WORDS, ResultLines
 from worksheet.app.widgets.status_line import StatusLine
 
@@ -66,6 +67,9 @@ def test_issue12_recorded_lines_are_on_screen_before_the_engine_runs(tmp_path: P
         assert "7.426e-16" in lines and "9.999e-16" not in lines
         assert "pending" not in lines and f"{ok_word} " in lines
         assert RECORDED_NOTICE not in ui.screen_text(app)
+        # The note drawn from its source at the first paint is rendered Markdown by now.
+        note = app.query(NoteCellView).first()
+        assert not note.source_first and len(note.query("Markdown")) == 1
 
     ui.drive(app, scenario)
 

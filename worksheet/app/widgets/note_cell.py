@@ -94,7 +94,7 @@ class NoteCellView(Vertical, can_focus=True):
         return self.has_class("-editing")
 
     def compose(self) -> ComposeResult:
-        if self.source_first and not self.blank:
+        if self.source_first:  # a blank note too: it is hidden, and Markdown not loaded yet
             yield Static(source_text(self.text), classes="note-source")
         else:
             yield _markdown(self.text)
