@@ -4,7 +4,8 @@ Run: python benchmarks/app_benchmarks.py
 (``--screenshot docs/screenshot.svg`` writes the README's screenshot instead.)
 
 1. Launch: process start to the first full paint of a demo sheet (every widget laid out,
-   the cells drawn with the results their file records), against the floor
+   the cells drawn with the results their file records, the notes from their source
+   text; the engine loads after it), against the floor
    ``import textual.app`` (and, for reference, sympy + numpy + pint + textual), the three
    processes started in turn and the medians compared. Target: at most 1.5 x the floor.
 2. Typing on a generated 300-statement sheet, driven by textual's pilot: the longest time

@@ -29,8 +29,6 @@ from worksheet.app.lazy_service import LazyRunService
 from worksheet.app.pauses import settle_long_lived
 from worksheet.app.recovery import newer_recovery, remove_recovery, write_recovery
 from worksheet.app.screens.choice import ChoiceScreen
-from worksheet.app.screens.finder import ConstantFinder
-from worksheet.app.screens.help import HelpScreen
 from worksheet.app.session import SheetSession
 from worksheet.app.theme_files import (
     FALLBACK,
@@ -61,6 +59,8 @@ DIALOG_ACTIONS = frozenset({"leave"})
 # Below this many columns the side panels are hidden; the panel key shows them instead of
 # the sheet (at 80 columns a side panel would leave neither the sheet nor the numbers room).
 NARROW_WIDTH = 100
+# The status line while the first run is going: the result lines shown are the file's.
+RECORDED_NOTICE = "results as recorded in the file (pending); computing ..."
 
 
 def summary(results: Iterable[StatementResult]) -> str:
@@ -107,6 +107,9 @@ class WorksheetApp(App[int]):
         self._notice = ""  # the last cell operation, kept in the status line
         # Where the sheet's focus was when the panel key moved it to the side panel.
         self._place: tuple[Widget, float] | None = None
+        # Before the first stylesheet pass: a theme set after mounting would style every
+        # widget twice before the first paint.
+        self._install_themes()
 
     # ----- building the screen
 
@@ -128,7 +131,6 @@ class WorksheetApp(App[int]):
         return {name: FALLBACK[source] for name, source in STATE_DEFAULTS.items()}
 
     async def on_mount(self) -> None:
-        self._install_themes()
         self.watch(self.screen, "focused", self._focus_moved, init=False)
         try:
             self.session = SheetSession.open(self.sheet_path)
@@ -140,8 +142,9 @@ class WorksheetApp(App[int]):
         # would otherwise compete with the first paint for the interpreter.
         # A new sheet starts in its empty calc cell, so the first keys typed go into it.
         first = 0 if self.session.saved is not None else self._first_calc_block()
-        await self._show_document(first, run=False)
-        self.call_after_refresh(self.start_run)
+        await self._show_document(first, run=False, source_notes=True)
+        self.say(RECORDED_NOTICE)
+        self.call_after_refresh(self._after_first_paint)
         self.set_interval(self.RECOVERY_SECONDS, self.keep_recovery)
         if self.problems:
             self.say("; ".join(self.problems), problem=True)
@@ -160,6 +163,11 @@ class WorksheetApp(App[int]):
                 ),
                 lambda answer: self._recovery_answer(answer, recovered),
             )
+
+    async def _after_first_paint(self) -> None:
+        """Start the engine (in its thread), then render the notes while it loads."""
+        self.start_run()
+        await self.sheet.render_notes()
 
     def _install_themes(self) -> None:
         loaded = load_themes()
@@ -231,7 +239,11 @@ class WorksheetApp(App[int]):
         self.query_one("#title", Static).update(text, layout=False)  # one line high
 
     async def _show_document(
-        self, focus: int | None, cursor: tuple[int, int] | None = None, run: bool = True
+        self,
+        focus: int | None,
+        cursor: tuple[int, int] | None = None,
+        run: bool = True,
+        source_notes: bool = False,
     ) -> None:
         """Rebuild every cell view from the session and run the sheet (at once by default).
 
@@ -241,7 +253,7 @@ class WorksheetApp(App[int]):
         assert self.session is not None
         sheet = self.sheet
         scrolled = sheet.scroll_y
-        await sheet.rebuild(self.session.doc)
+        await sheet.rebuild(self.session.doc, source_notes=source_notes)
         view = sheet.focus_block(focus, cursor) if focus is not None else None
 
         def back_in_place() -> None:
@@ -282,7 +294,8 @@ class WorksheetApp(App[int]):
             self._run_timer.stop()
             self._run_timer = None
         self._generation += 1
-        self.say("computing ...")
+        # Until the first run is back, the lines on screen are the file's, not computed.
+        self.say(RECORDED_NOTICE if self.outcome is None else "computing ...")
         # A run going on for long (a verb in its budget) would hold this one back.
         service = self.service.started
         if service is not None and service.give_up_slow_run(self.GIVE_UP_AFTER):
@@ -441,6 +454,8 @@ class WorksheetApp(App[int]):
             )
 
     def action_show_help(self) -> None:
+        from worksheet.app.screens.help import HelpScreen  # dialogs load when first opened
+
         self.push_screen(HelpScreen())
 
     def action_rerun(self) -> None:
@@ -495,6 +510,8 @@ class WorksheetApp(App[int]):
                 return
             target.focus()
             target.insert(text)
+
+        from worksheet.app.screens.finder import ConstantFinder  # loads when first opened
 
         self.push_screen(ConstantFinder(load_dataset(dataset_name)), insert)
 

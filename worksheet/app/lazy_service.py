@@ -22,6 +22,9 @@ class LazyRunService:
         self._service: RunService | None = None
         self._lock = threading.Lock()
         self._closed = False
+        # A test hook: while set to an unset event, the first ``get`` waits for it before
+        # importing the engine (so a test can look at the screen the file's results paint).
+        self.gate: threading.Event | None = None
 
     @property
     def started(self) -> RunService | None:
@@ -30,6 +33,9 @@ class LazyRunService:
 
     def get(self) -> RunService | None:
         """The service, importing the engine the first time; None once closed."""
+        gate = self.gate
+        if gate is not None:
+            gate.wait()
         with self._lock:
             if self._closed:
                 return None
@@ -44,5 +50,7 @@ class LazyRunService:
         with self._lock:
             self._closed = True
             service = self._service
+        if self.gate is not None:
+            self.gate.set()  # a run waiting at the gate goes on, finds the service closed
         if service is not None:
             service.close()

@@ -39,19 +39,29 @@ class SheetView(VerticalScroll):
             focused = parent if isinstance(parent, Widget) else None
         return None
 
-    async def rebuild(self, doc: SheetDocument) -> None:
-        """Replace every cell view by fresh ones for ``doc``."""
+    async def rebuild(self, doc: SheetDocument, source_notes: bool = False) -> None:
+        """Replace every cell view by fresh ones for ``doc``.
+
+        ``source_notes``: notes show their source text until ``render_notes`` (the first
+        paint of the app).
+        """
         await self.remove_children()
         views: list[CellView] = []
         for index, block in enumerate(doc.blocks):
             if isinstance(block, CalcCell):
                 views.append(CalcCellView(index, editor_text(block.body), block.first_line))
             else:
-                views.append(NoteCellView(index, block.text))
+                views.append(NoteCellView(index, block.text, source_first=source_notes))
         await self.mount_all(views)
         for view, block in zip(views, doc.blocks, strict=True):
             if isinstance(view, CalcCellView) and isinstance(block, CalcCell):
                 view.show_recorded(block.result.lines() if block.result is not None else ())
+
+    async def render_notes(self) -> None:
+        """Render the notes still showing their source text as Markdown."""
+        for view in self.cells():
+            if isinstance(view, NoteCellView):
+                await view.render_markdown()
 
     def replace_places(self, doc: SheetDocument) -> None:
         """After an edit inside one cell, refresh the line numbers of all calc cells."""
