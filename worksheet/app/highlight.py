@@ -4,6 +4,9 @@ from __future__ import annotations
 
 import re
 
+# The words are listed here rather than imported from the engine's translator, which loads
+# sympy: the highlighter runs at the first paint, before the engine is imported.
+# tests/app/test_highlight_words.py keeps the two lists in step.
 VERBS = frozenset(
     {
         "diff",
