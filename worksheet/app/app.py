@@ -104,6 +104,7 @@ class WorksheetApp(App[int]):
         self._run_timer: Timer | None = None
         self._last_recovery: str | None = None
         self._closed = False
+        self._notes_rendered = False  # notes show their source text until after first paint
         self._notice = ""  # the last cell operation, kept in the status line
         # Where the sheet's focus was when the panel key moved it to the side panel.
         self._place: tuple[Widget, float] | None = None
@@ -168,6 +169,7 @@ class WorksheetApp(App[int]):
         """Start the engine (in its thread), then render the notes while it loads."""
         self.start_run()
         await self.sheet.render_notes()
+        self._notes_rendered = True
 
     def _install_themes(self) -> None:
         loaded = load_themes()
@@ -268,9 +270,11 @@ class WorksheetApp(App[int]):
 
     @property
     def settled(self) -> bool:
-        """No run is pending and the shown results are those of the current document."""
+        """No run is pending, the shown results are those of the current document, and the
+        notes are rendered (their height is final, so scroll positions are too)."""
         return (
-            self.session is not None
+            self._notes_rendered
+            and self.session is not None
             and self._run_timer is None
             and self.outcome is not None
             and self.outcome.doc is self.session.doc
