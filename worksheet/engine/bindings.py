@@ -10,6 +10,7 @@ from typing import TYPE_CHECKING, Any
 
 import sympy
 
+from worksheet.engine.results import LazyForm
 from worksheet.units.dimension import Dimension
 
 if TYPE_CHECKING:
@@ -38,7 +39,7 @@ class Binding:
     symbol: sympy.Symbol
     dimension: Dimension
     line: int | None = None
-    local: sympy.Expr | None = None
+    local: sympy.Expr | LazyForm | None = None  # a LazyForm until first printed (fast path)
     deps: tuple[str, ...] = ()
     value: float | None = None  # SI
     uncertainty: float | None = None  # SI, standard, first order
@@ -59,11 +60,18 @@ class Binding:
     def has_value(self) -> bool:
         return self.value is not None
 
+    def local_expr(self) -> sympy.Expr | None:
+        """``local`` as a sympy expression (built now if the fast path left it lazy)."""
+        if isinstance(self.local, LazyForm):
+            self.local = self.local.expr()
+        return self.local
+
     def form(self) -> sympy.Expr:
         """The expression in givens, declared symbols and constants (computed once, lazily)."""
         if self._form is not None:
             return self._form
-        if self.origin not in (Origin.DERIVED, Origin.ESTIMATE) or self.local is None:
+        local = self.local_expr()
+        if self.origin not in (Origin.DERIVED, Origin.ESTIMATE) or local is None:
             self._form = self.symbol
             return self._form
         replacements = {}
@@ -71,7 +79,7 @@ class Binding:
             other = self._resolver(dep) if self._resolver else None
             if other is not None and other.origin in (Origin.DERIVED, Origin.ESTIMATE):
                 replacements[other.symbol] = other.form()
-        self._form = self.local.xreplace(replacements) if replacements else self.local
+        self._form = local.xreplace(replacements) if replacements else local
         return self._form
 
 

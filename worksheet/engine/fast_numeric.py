@@ -1,29 +1,41 @@
-"""A float-and-dimension walk over the parsed tree for the plainest statements.
+"""The numbers of a product-and-power expression, walked over the parsed tree in written order.
 
-Most lines of a long sheet are a number with its unit (``x = 1.5 [m]``) or a claim about
-names already computed (``check y > 0 [m/s]``). For those the sympy expression is needed
-only when someone prints the symbolic form, so it is built lazily (``LazyForm``).
+Most lines of a derivation sheet are products, quotients and powers of numbers, units,
+constants and names already computed: ``T_H = hbar*c^3/(8*pi*G*M*k_B)``. Their double and
+their partial derivatives (for the uncertainty) come from one walk over the parsed tree,
+in the order the line is written, whichever path builds the symbolic form. The sympy form
+is then needed only when someone prints it, so the fast path builds it lazily
+(``LazyForm``) from the bindings the line saw.
 
-The walk covers only expressions whose double is provably the one the sympy path gives:
-a number, a unit, a number times a unit, a sheet name, and their negations. These are
-products of at most two doubles, and a product of two doubles does not depend on their
-order; longer products and quotients would (sympy reorders and folds factors), so they
-take the sympy path. Anything else not covered (an unknown name, an offset unit, a unit
-whose factor carries G's uncertainty, a value that is zero, infinite or subnormal, which
-the precision guard inspects) also returns None: the caller takes the sympy path, which
-gives every error message.
+Exact numbers are folded exactly while they meet only exact numbers (``2/3``, ``10^-3``),
+as sympy would, and become a double when they meet a double. Each product and quotient of
+doubles is one correctly rounded operation, so the walk is as accurate as the sympy walk
+(which multiplies in sympy's canonical order instead); the two can differ in the last bit.
+
+What the walk does not cover returns None and takes the sympy path, which gives every
+error message and the precision guard: sums and differences (cancellation), functions
+other than ``sqrt``, verbs, relations, symbolic names, offset units, ranged inputs, and
+results that are zero, infinite or subnormal.
 """
 
 from __future__ import annotations
 
 import math
 from collections.abc import Callable
+from dataclasses import dataclass
+from fractions import Fraction
 from typing import TYPE_CHECKING
 
-from worksheet.engine.bindings import Origin
-from worksheet.engine.figures import Figures, unit_g_power
+from worksheet.engine.bindings import Binding, Origin
+from worksheet.engine.figures import (
+    Figures,
+    _g_seed,
+    name_g_power,
+    propagated_uncertainty,
+    unit_g_power,
+)
 from worksheet.engine.results import LazyForm
-from worksheet.engine.translate import Typed
+from worksheet.engine.translate import MAX_DIMENSION_POWER, Typed
 from worksheet.errors import WorksheetError
 from worksheet.syntax import tree as t
 from worksheet.units.dimension import Dimension
@@ -34,91 +46,249 @@ if TYPE_CHECKING:
     from worksheet.units.registry import ResolvedUnit
 
 ENABLED = True
-"""Switch the fast path off (tests compare both paths) by setting this to False."""
+"""Skip building sympy forms for walked expressions. Tests set it False to compare the
+eager path (forms built at once) with the lazy one: the numbers are the walk's in both."""
 
 _DIMENSIONLESS = Dimension()
+_PI = math.pi  # float(sympy.pi): the double nearest pi
+_EXACT_BITS = 4096
+"""Exact numbers longer than this (numerator or denominator) become doubles at once."""
 
 
 class _NotCovered(Exception):
     """The expression needs the sympy path."""
 
 
-def fast_quantity(
-    evaluator: StatementEvaluator, tr: Translator, node: t.Expr, names: bool
-) -> Quantity | None:
-    """The quantity of ``node`` without sympy, or None where the sympy path is needed.
+@dataclass(frozen=True, slots=True)
+class _Walked:
+    """One subtree's number: ``exact`` for a number written exactly (else None)."""
 
-    ``names`` allows sheet names (claims only: a definition's local form must be sympy).
-    """
+    value: float
+    dim: Dimension
+    exact: Fraction | None = None
+    grad: dict[str, float] | None = None  # d value / d input; None: no uncertain input
+
+
+@dataclass(frozen=True, slots=True)
+class WalkedQuantity:
+    """What the walk knows of an expression: enough to record it without sympy."""
+
+    figures: Figures
+    dim: Dimension
+    lone: ResolvedUnit | None  # the unit of a number written with one (``-3 [km]``)
+    used: tuple[str, ...]  # sheet names read, in the order the translator reads them
+    seen: dict[str, Binding]  # every binding read, for building the form later
+
+
+def walk_quantity(evaluator: StatementEvaluator, node: t.Expr) -> WalkedQuantity | None:
+    """The numbers of ``node`` from the parsed tree, or None where the sympy path is needed."""
+    walker = _Walker(evaluator)
+    try:
+        walked = walker.walk(node)
+        value = float(walked.exact) if walked.exact is not None else walked.value
+    except (_NotCovered, WorksheetError, OverflowError, ZeroDivisionError, ValueError):
+        return None
+    if not (math.isfinite(value) and abs(value) >= 2.3e-308):
+        return None  # zero, inf and subnormal values: the precision guard looks at these
+    gradient = {key: d for key, d in (walked.grad or {}).items() if d != 0}
+    uncertainty = propagated_uncertainty(value, gradient, evaluator._input_uncertainty)
+    return WalkedQuantity(
+        Figures(value, None, gradient, uncertainty),
+        walked.dim,
+        walker.lone(node),
+        tuple(walker.used),
+        walker.seen,
+    )
+
+
+def fast_quantity(evaluator: StatementEvaluator, tr: Translator, node: t.Expr) -> Quantity | None:
+    """The quantity of ``node`` without building sympy, or None where sympy is needed."""
     if not ENABLED:
+        return None
+    walked = walk_quantity(evaluator, node)
+    if walked is None:
         return None
     from worksheet.engine.statements import Quantity
 
-    try:
-        value, dim, lone = _walk(evaluator, node, names, top=True)
-    except (_NotCovered, WorksheetError, OverflowError, ZeroDivisionError):
+    tr.used.extend(walked.used)
+    form = LazyForm(_form_builder(evaluator, node, walked.seen))
+    return Quantity(Typed(form, walked.dim), walked.figures, walked.lone)  # type: ignore[arg-type]
+
+
+def _form_builder(
+    evaluator: StatementEvaluator, node: t.Expr, seen: dict[str, Binding]
+) -> Callable[[], object]:
+    """Translate later with the bindings the line saw now (a later line may rebind a name)."""
+
+    def build() -> object:
+        translator = evaluator.translator()
+        translator.lookup = seen.get
+        return translator.translate(node).expr
+
+    return build
+
+
+class _Walker:
+    """One walk: remembers the names read, in the translator's order."""
+
+    def __init__(self, evaluator: StatementEvaluator):
+        self.evaluator = evaluator
+        self.used: list[str] = []
+        self.seen: dict[str, Binding] = {}
+
+    def walk(self, node: t.Expr) -> _Walked:
+        if isinstance(node, t.Number):
+            value = node.value
+            return _Walked(_double(value), _DIMENSIONLESS, value)
+        if isinstance(node, t.Name):
+            return self._name(node)
+        if isinstance(node, t.Unit):
+            return self._unit(node)
+        if isinstance(node, t.Neg):
+            inner = self.walk(node.operand)
+            grad = {key: -d for key, d in inner.grad.items()} if inner.grad else None
+            exact = -inner.exact if inner.exact is not None else None
+            return _Walked(-inner.value, inner.dim, exact, grad)
+        if isinstance(node, t.BinOp) and node.op in "*/":
+            return self._product(node)
+        if isinstance(node, t.Power):
+            return self._power(self.walk(node.base), self.walk(node.exponent))
+        if isinstance(node, t.Call) and node.func == "sqrt" and len(node.args) == 1:
+            return self._power(self.walk(node.args[0]), None)
+        raise _NotCovered
+
+    def lone(self, node: t.Expr) -> ResolvedUnit | None:
+        """The unit of ``25 [degC]``, ``-3 [km]`` or ``[kg]``: a number with its unit."""
+        if isinstance(node, t.Neg):
+            node = node.operand
+        if isinstance(node, t.BinOp) and node.op == "*" and isinstance(node.left, t.Number):
+            node = node.right
+        if isinstance(node, t.Unit):
+            return self.evaluator.ctx.registry.resolve(node.unit, node.line, node.column)
         return None
-    if not (math.isfinite(value) and (abs(value) >= 2.3e-308 or (names and value == 0))):
-        return None  # the precision guard looks at these; the sympy path has it
-    form = LazyForm(_form_builder(evaluator, node))
-    return Quantity(Typed(form, dim), Figures(value), lone)  # type: ignore[arg-type]
+
+    # --- leaves ---
+    def _name(self, node: t.Name) -> _Walked:
+        if node.id == "pi":
+            return _Walked(_PI, _DIMENSIONLESS)
+        evaluator = self.evaluator
+        binding = evaluator.lookup(node.id)
+        if binding is None or binding.value is None:
+            raise _NotCovered
+        if binding.origin is Origin.CONSTANT:
+            self.seen[node.id] = binding
+            value = binding.value
+            seed = _g_seed(name_g_power(node.id, evaluator.ctx), value, evaluator.ctx)
+            if not seed and binding.uncertainty:
+                seed = {node.id: 1.0}
+            return _Walked(value, binding.dimension, None, seed or None)
+        if (
+            binding.origin not in (Origin.GIVEN, Origin.DERIVED)
+            or binding.spread is not None
+            or evaluator.values.get(binding.symbol) is not binding
+            or _ranged(binding)
+        ):
+            raise _NotCovered
+        self.seen[node.id] = binding
+        self.used.append(node.id)
+        return _Walked(binding.value, binding.dimension, None, dict(binding.gradient) or None)
+
+    def _unit(self, node: t.Unit) -> _Walked:
+        ctx = self.evaluator.ctx
+        unit = ctx.registry.resolve(node.unit, node.line, node.column)
+        if unit.is_offset:
+            raise _NotCovered  # the sympy path says where an offset unit may stand
+        seed = _g_seed(unit_g_power(node.unit.source, ctx), unit.factor, ctx)
+        return _Walked(unit.factor, unit.dimension, None, seed or None)
+
+    # --- operators ---
+    def _product(self, node: t.BinOp) -> _Walked:
+        left, right = self.walk(node.left), self.walk(node.right)
+        multiply = node.op == "*"
+        dim = left.dim * right.dim if multiply else left.dim / right.dim
+        if left.exact is not None and right.exact is not None:
+            if not multiply and right.exact == 0:
+                raise _NotCovered
+            exact = left.exact * right.exact if multiply else left.exact / right.exact
+            return _Walked(_double(exact), dim, _bounded(exact))
+        a, b = _double_of(left), _double_of(right)
+        if multiply:
+            value = a * b
+            grad = _combine((b, left.grad), (a, right.grad))
+        else:
+            if b == 0:
+                raise _NotCovered  # the sympy path names the division by zero
+            value = a / b
+            grad = _combine((1 / b, left.grad), (-value / b, right.grad))
+        return _Walked(value, dim, None, grad)
+
+    def _power(self, base: _Walked, exponent: _Walked | None) -> _Walked:
+        """``base^exponent``; ``exponent`` None is ``sqrt``."""
+        if exponent is not None and (exponent.exact is None or exponent.grad):
+            raise _NotCovered  # a computed exponent: the sympy path checks it
+        power = Fraction(1, 2) if exponent is None else exponent.exact
+        assert power is not None
+        if abs(power) > MAX_DIMENSION_POWER:
+            raise _NotCovered
+        if exponent is not None and not exponent.dim.dimensionless:
+            raise _NotCovered
+        dim = _DIMENSIONLESS if base.dim.dimensionless else base.dim**power
+        if base.exact is not None and power.denominator == 1:
+            if base.exact == 0 and power < 0:
+                raise _NotCovered
+            size = max(base.exact.numerator.bit_length(), base.exact.denominator.bit_length())
+            if size * abs(power.numerator) > _EXACT_BITS:
+                raise _NotCovered
+            exact = base.exact**power.numerator
+            return _Walked(_double(exact), dim, _bounded(exact))
+        x = _double_of(base)
+        if x == 0:
+            raise _NotCovered
+        if exponent is None:
+            if x < 0:
+                raise _NotCovered
+            value = math.sqrt(x)
+        else:
+            value = x ** _double(power)
+            if isinstance(value, complex):
+                raise _NotCovered
+        grad = _combine((_double(power) * value / x, base.grad))
+        return _Walked(value, dim, None, grad)
 
 
-def _form_builder(evaluator: StatementEvaluator, node: t.Expr) -> Callable[[], object]:
-    return lambda: evaluator.translator().translate(node).expr
-
-
-def _walk(
-    evaluator: StatementEvaluator, node: t.Expr, names: bool, top: bool = False
-) -> tuple[float, Dimension, ResolvedUnit | None]:
-    """(SI double, dimension, the unit of a lone value written with one)."""
-    if isinstance(node, t.Neg):
-        value, dim, lone = _walk(evaluator, node.operand, names)
-        if isinstance(node.operand, t.Neg) or value == 0:
-            raise _NotCovered  # sympy folds these (--x is x, -0 is 0)
-        return -value, dim, lone if top else None
-    if isinstance(node, t.Number):
-        return _number(node), _DIMENSIONLESS, None
-    if isinstance(node, t.Unit):
-        unit = _unit(evaluator, node)
-        return unit.factor, unit.dimension, unit
-    if (
-        isinstance(node, t.BinOp)
-        and node.op == "*"
-        and isinstance(node.left, t.Number)
-        and isinstance(node.right, t.Unit)
-    ):
-        unit = _unit(evaluator, node.right)
-        return _number(node.left) * unit.factor, _DIMENSIONLESS * unit.dimension, unit
-    if names and isinstance(node, t.Name):
-        return _name(evaluator, node), evaluator.lookup(node.id).dimension, None  # type: ignore[union-attr]
-    raise _NotCovered
-
-
-def _number(node: t.Number) -> float:
+def _double(value: Fraction) -> float:
     """The double sympy's Rational gives (``p / q`` by integer true division)."""
-    value = node.value
     if value.denominator == 1:
         return float(value.numerator)
     return value.numerator / value.denominator
 
 
-def _unit(evaluator: StatementEvaluator, node: t.Unit) -> ResolvedUnit:
-    unit = evaluator.ctx.registry.resolve(node.unit, node.line, node.column)
-    if unit.is_offset or unit_g_power(node.unit.source, evaluator.ctx):
-        raise _NotCovered  # offset errors and G-correlated seeds belong to the sympy path
-    return unit
+def _double_of(walked: _Walked) -> float:
+    if walked.exact is not None:
+        return _double(walked.exact)
+    return walked.value
 
 
-def _name(evaluator: StatementEvaluator, node: t.Name) -> float:
-    binding = evaluator.lookup(node.id)
-    if (
-        binding is None
-        or binding.origin not in (Origin.GIVEN, Origin.DERIVED)
-        or binding.value is None
-        or binding.gradient
-        or binding.spread is not None
-        or evaluator.values.get(binding.symbol) is not binding
-    ):
+def _bounded(exact: Fraction) -> Fraction:
+    """Refuse exact numbers past a few thousand bits: the sympy path has their limits."""
+    if exact.numerator.bit_length() > _EXACT_BITS or exact.denominator.bit_length() > _EXACT_BITS:
         raise _NotCovered
-    return binding.value
+    return exact
+
+
+def _combine(*parts: tuple[float, dict[str, float] | None]) -> dict[str, float] | None:
+    """The chain rule: sum of factor * d(part)/d(input), keys in first-seen order."""
+    grad: dict[str, float] | None = None
+    for factor, part in parts:
+        if part:
+            if grad is None:
+                grad = {}
+            for key, d in part.items():
+                grad[key] = grad.get(key, 0.0) + factor * d
+    return grad
+
+
+def _ranged(binding: Binding) -> bool:
+    from worksheet.engine.sampling import is_ranged
+
+    return is_ranged(binding)

@@ -199,12 +199,21 @@ def compute_figures(
     if _has_uncertain_inputs(expr, sheet, ctx):
         dual = evaluate(expr, SymbolValues(sheet, ctx, "dual"), DUAL)
         gradient = {key: d for key, d in dual.grad.items() if d != 0}
-        # hypot, not sqrt of a sum of squares: the squares of 1e300 * G's u overflow.
-        total = math.hypot(*(d * input_uncertainty(key) for key, d in gradient.items()))
-        uncertainty = total if total > 0 else None
-        if uncertainty is not None and uncertainty <= ROUNDING_FLOOR * abs(value):
-            uncertainty = None  # what is left after exact cancellation is rounding noise
+        uncertainty = propagated_uncertainty(value, gradient, input_uncertainty)
     return Figures(value, precise, gradient, uncertainty, loss)
+
+
+def propagated_uncertainty(
+    value: float, gradient: Mapping[str, float], input_uncertainty: Callable[[str], float]
+) -> float | None:
+    """First-order standard uncertainty from the partials (None: none worth stating)."""
+    if not gradient:
+        return None
+    # hypot, not sqrt of a sum of squares: the squares of 1e300 * G's u overflow.
+    total = math.hypot(*(d * input_uncertainty(key) for key, d in gradient.items()))
+    if total <= 0 or total <= ROUNDING_FLOOR * abs(value):
+        return None  # what is left after exact cancellation is rounding noise
+    return total
 
 
 def _rescued_by_guard(

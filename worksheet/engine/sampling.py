@@ -139,7 +139,7 @@ def samples_of(binding: Binding, ctx: Context, values: Mapping[sympy.Symbol, Bin
         spread = Spread("normal", center=binding.value, width=binding.input_uncertainty)
         drawn = spread.draw(ctx.samples, ctx.seed, binding.name)
     elif is_random(binding) and binding.local is not None:
-        drawn = expression_samples(binding.local, ctx, values)
+        drawn = expression_samples(binding.local_expr(), ctx, values)
     else:
         return None
     drawn.setflags(write=False)

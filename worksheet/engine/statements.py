@@ -13,7 +13,7 @@ from worksheet.engine import symbolic_ops as ops
 from worksheet.engine.bindings import Binding, Origin, symbol_for, unit_symbol
 from worksheet.engine.context import Context
 from worksheet.engine.estimate import Outcome, solve_exponents
-from worksheet.engine.fast_numeric import fast_quantity
+from worksheet.engine.fast_numeric import fast_quantity, walk_quantity
 from worksheet.engine.figures import (
     Figures,
     compute_figures,
@@ -222,16 +222,19 @@ class StatementEvaluator:
         own, stated = binding.name, binding.input_uncertainty
         return lambda key: stated if key == own else self._input_uncertainty(key)
 
-    def quantity(self, tr: Translator, node: t.Expr, fast: bool | None = None) -> Quantity:
+    def quantity(self, tr: Translator, node: t.Expr, fast: bool = False) -> Quantity:
         """Translate and, where every name has a value, compute the SI number.
 
-        ``fast`` tries the float walk first (``fast_numeric``; True also allows names).
+        A product-and-power expression takes its numbers from the parsed tree
+        (``fast_numeric``) on either path; ``fast`` also leaves its sympy form to be built
+        when it is printed.
         """
-        if fast is not None:
-            quick = fast_quantity(self, tr, node, names=fast)
+        if fast:
+            quick = fast_quantity(self, tr, node)
             if quick is not None:
                 return quick
         lone = _lone_unit_value(node)
+        resolved = None
         if lone is not None:
             number, unit_node = lone
             resolved = self.ctx.registry.resolve(unit_node.unit, unit_node.line, unit_node.column)
@@ -242,10 +245,11 @@ class StatementEvaluator:
                 self.ctx.unit_values[unit_symbol("K")] = 1.0
                 typed = Typed(expr, resolved.dimension)
                 return Quantity(typed, self.figures(expr), resolved)
-            typed = tr.translate(node)
-            return Quantity(typed, self.figures(typed.expr), resolved)
         typed = tr.translate(node)
-        return Quantity(typed, self.figures(typed.expr))
+        walked = walk_quantity(self, node)
+        if walked is not None:
+            return Quantity(typed, walked.figures, resolved)
+        return Quantity(typed, self.figures(typed.expr), resolved)
 
     def output_unit(
         self, quantity: Quantity, conversion: t.Conversion | None, at: t.Statement
@@ -358,7 +362,7 @@ class StatementEvaluator:
             return ranged_definition(self, stmt)
         self._refuse_constant_name(stmt.name, stmt)
         tr = self.translator()
-        quantity = self.quantity(tr, stmt.expr, fast=False)
+        quantity = self.quantity(tr, stmt.expr, fast=True)
         typed = quantity.typed
         deps = tuple(dict.fromkeys(tr.used))
         origin = Origin.DERIVED if deps else Origin.GIVEN

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 import unicodedata
 from dataclasses import dataclass
 from enum import Enum
@@ -64,6 +65,17 @@ _ALIASES = {"π": "pi", "ħ": "hbar", "×": "*", "·": "*", "−": "-", "²": "^
 
 _DIGITS = frozenset("0123456789")
 
+_PLAIN = re.compile(
+    r"(?P<space>[ \t\r]+)"
+    r"|(?P<number>(?:[0-9]+(?:\.(?!\.)[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?)"
+    r"|(?P<name>[A-Za-z_][A-Za-z0-9_]*)"
+    r"|(?P<op>\*\*|==|<=|>=|\+-|\.\.|[-+*/^(),=<>~:%])"
+)
+"""The plain ASCII tokens, read by one regular expression. Anything else (a newline, a
+comment, a bracketed unit, a non-ASCII letter or alias, every error) is read by the
+character loop below, which the expression must agree with token for token."""
+_ASCII_NAME_PART = frozenset("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789_")
+
 
 def _is_digit(char: str) -> bool:
     """An ASCII digit: ``str.isdigit`` also takes '¹', '①' and other scripts' digits."""
@@ -110,7 +122,7 @@ def _scan_number(text: str, start: int) -> int:
     return i
 
 
-def tokenize(text: str, line: int = 1, column: int = 1) -> list[Token]:
+def tokenize(text: str, line: int = 1, column: int = 1, plain: bool = True) -> list[Token]:
     """Split one statement into tokens; ``#`` starts a comment.
 
     ``line``/``column`` give the position of ``text[0]`` in the file. Newlines inside the
@@ -133,7 +145,29 @@ def tokenize(text: str, line: int = 1, column: int = 1) -> list[Token]:
     def col(index: int) -> int:
         return index - line_start + 1
 
+    match_plain = _PLAIN.match if plain else (lambda text, index: None)
     while i < n:
+        plain_token = match_plain(text, i)
+        if plain_token is not None:
+            end = plain_token.end()
+            after = text[end] if end < n else ""
+            group = plain_token.lastgroup
+            if group == "space":
+                i = end
+                continue
+            if group == "op":
+                found = plain_token.group()
+                kind = Kind.PERCENT if found == "%" else Kind.OP
+                canonical = "^" if found == "**" else found
+                tokens.append(Token(kind, canonical, cur_line, col(i)))
+                i = end
+                continue
+            if not after or (after.isascii() and after not in _ASCII_NAME_PART):
+                kind = Kind.NUMBER if group == "number" else Kind.NAME
+                tokens.append(Token(kind, plain_token.group(), cur_line, col(i)))
+                i = end
+                continue
+            # a number running into a name, or a name going on in another script: below
         char = text[i]
         if char == "\n":
             cur_line += 1

@@ -1,0 +1,130 @@
+"""The parsed-tree walk gives the numbers the sympy walk gives, to rounding.
+
+The two multiply in different orders (written order vs sympy's canonical order, with exact
+coefficients folded), so they may differ in the last bits; each operation is one correctly
+rounded step, so an expression of n operations may differ by a few n units in the last
+place. The uncertainties are first-order sums of the same partials.
+"""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from worksheet.engine import SheetEvaluator, SourceStatement, fast_numeric, make_context
+from worksheet.engine import statements as statements_module
+
+GIVENS = [
+    "a = 1.7e3 [m] +- 2%",
+    "b = -3.2e-5 [s]",
+    "M = 5e11 [kg]",
+    "q = 2.5 [M_sun]",
+    "n = 7 +- 0.5",
+]
+ATOMS = ["a", "b", "M", "q", "n", "G", "c", "hbar", "k_B", "pi", "2", "3.5", "1e-3", "7/3"]
+ATOMS += ["[km]", "(1 [M_sun])", "(0.5 [pc])", "(2 [eV])", "(4 [s])"]
+
+
+def expressions() -> st.SearchStrategy[str]:
+    atoms = st.sampled_from(ATOMS)
+
+    def extend(inner: st.SearchStrategy[str]) -> st.SearchStrategy[str]:
+        return st.one_of(
+            st.tuples(inner, st.sampled_from(["*", "/"]), inner).map(
+                lambda p: f"({p[0]}{p[1]}{p[2]})"
+            ),
+            st.tuples(inner, st.sampled_from(["2", "3", "-1", "-2", "1/2", "(-3/2)"])).map(
+                lambda p: f"({p[0]})^{p[1]}"
+            ),
+            inner.map(lambda e: f"sqrt({e})"),
+            inner.map(lambda e: f"(-{e})"),
+        )
+
+    return st.recursive(atoms, extend, max_leaves=10)
+
+
+def last_result(expression: str):
+    """The result of ``r = expression`` after the givens, on one path."""
+    lines = [*GIVENS, f"r = {expression}"]
+    evaluator = SheetEvaluator(make_context())
+    try:
+        return evaluator.run([SourceStatement(k + 1, text) for k, text in enumerate(lines)])[-1]
+    finally:
+        evaluator.ctx.worker.close()
+
+
+def sympy_order_result(expression: str, monkeypatch: pytest.MonkeyPatch):
+    """The same statement with the walk switched off: numbers from the sympy walk."""
+    with monkeypatch.context() as patch:
+        patch.setattr(fast_numeric, "ENABLED", False)
+        patch.setattr(statements_module, "walk_quantity", lambda evaluator, node: None)
+        return last_result(expression)
+
+
+def close(x: float, y: float, ulps: int) -> bool:
+    return abs(x - y) <= ulps * 2.0**-52 * max(abs(x), abs(y))
+
+
+@settings(max_examples=150, deadline=None)
+@given(expressions())
+def test_issue12_tree_walk_matches_the_sympy_walk(expression: str) -> None:
+    monkeypatch = pytest.MonkeyPatch()
+    try:
+        walked = last_result(expression)
+        reference = sympy_order_result(expression, monkeypatch)
+    finally:
+        monkeypatch.undo()
+    assert walked.status == reference.status, (expression, walked.record, reference.record)
+    if reference.si_value is None or walked.si_value is None:
+        assert walked.record == reference.record
+        return
+    operations = expression.count("*") + expression.count("/") + expression.count("^") + 8
+    assert close(walked.si_value, reference.si_value, 4 * operations), (
+        expression,
+        walked.si_value,
+        reference.si_value,
+    )
+    assert (walked.uncertainty is None) == (reference.uncertainty is None), expression
+    if walked.uncertainty is not None:
+        assert math.isclose(walked.uncertainty, reference.uncertainty, rel_tol=1e-9), expression
+    assert walked.unit == reference.unit and walked.dimension == reference.dimension
+
+
+def test_issue12_tree_walk_covers_the_hawking_temperature(monkeypatch) -> None:
+    """The plainest derivation line takes the walk and builds no sympy form until printed."""
+    calls = []
+    real = fast_numeric.walk_quantity
+
+    def counting(evaluator, node):
+        walked = real(evaluator, node)
+        calls.append(walked is not None)
+        return walked
+
+    monkeypatch.setattr(fast_numeric, "walk_quantity", counting)
+    result = last_result("hbar*c^3/(8*pi*G*M*k_B)")
+    assert calls[-1] is True
+    assert isinstance(result.form, fast_numeric.LazyForm)
+    assert result.symbolic == "c^3*hbar/(8*pi*G*M*k_B)"
+    # T_H = hbar c^3 / (8 pi G M k_B) (Hawking 1975); scipy.constants' CODATA 2018 values,
+    # the dataset this context pins, for M = 5e11 kg.
+    from scipy import constants as sc
+
+    expected = sc.hbar * sc.c**3 / (8 * math.pi * sc.G * 5e11 * sc.k)
+    assert math.isclose(result.si_value, expected, rel_tol=1e-12)
+
+
+def test_issue12_lazy_form_uses_the_bindings_the_line_saw() -> None:
+    """A result keeps its own form after an edit removes the name it read (the app prints
+    forms of results it holds, after later runs)."""
+    evaluator = SheetEvaluator(make_context())
+    try:
+        first = evaluator.run([SourceStatement(1, "x = 2 [m]"), SourceStatement(2, "y = x*3")])
+        second = evaluator.run([SourceStatement(1, "w = 2 [m]"), SourceStatement(2, "y = x*3")])
+    finally:
+        evaluator.ctx.worker.close()
+    assert second[1].status == "error"
+    assert isinstance(first[1].form, fast_numeric.LazyForm)
+    assert first[1].si_value == 6.0 and first[1].symbolic == "3*x"
