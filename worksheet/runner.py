@@ -12,6 +12,7 @@ import os
 import re
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
+from functools import cached_property
 from itertools import accumulate, compress
 
 from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET
@@ -180,8 +181,13 @@ class SheetRun:
     statements: tuple[SourceStatement, ...]
     results: tuple[StatementResult, ...]
     document: SheetDocument
-    text: str
     stale: tuple[StaleLine, ...] = field(default=())
+
+    @cached_property
+    def text(self) -> str:
+        """The document as written to the file (rendered when first asked: an edit in the
+        app needs the results at once and the whole text only when it saves)."""
+        return render_document(self.document)
 
     @property
     def cites_written_lines(self) -> bool:
@@ -377,7 +383,6 @@ class SheetRunner:
             tuple(statements),
             tuple(results),
             new_doc,
-            render_document(new_doc),
             tuple(stale),
         )
 
@@ -410,10 +415,13 @@ class SheetRunner:
             if len(split) != size:
                 return None
             statements[start : start + size] = split
-        results = self.evaluator(settings).run(statements)
+        evaluator = self.evaluator(settings)
+        results = evaluator.run(statements)
         if len(results) != len(statements):
             return None
-        moved = compress(range(len(results)), map(operator.is_not, results, last.results))
+        moved = evaluator.rerun
+        if moved is None:
+            moved = compress(range(len(results)), map(operator.is_not, results, last.results))
         touched = sorted(set(edited) | {last.cell_of[index] for index in moved})
         per_cell = list(last.per_cell)
         lines_of = list(last.lines_of)
@@ -462,7 +470,6 @@ class SheetRunner:
             tuple(statements),
             tuple(results),
             new_doc,
-            render_document(new_doc),
             tuple(ordered),
         )
 

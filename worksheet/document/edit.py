@@ -298,7 +298,8 @@ def with_results(
         raise DocumentError(
             f"one result entry per calc cell is needed: {len(cells)} cells, {len(results)} entries"
         )
-    if any(isinstance(lines, str) for lines in results):
+    checked = results if only is None else [results[position] for position in only]
+    if any(isinstance(lines, str) for lines in checked):
         raise DocumentError("each result entry must be a list of lines, not a single string")
     blocks = list(doc.blocks)
     changed: dict[int, CalcCell] = {}

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass
+from functools import cached_property
 
 _LINE_END = re.compile(r"(\r\n|\n|\r)")
 
@@ -157,10 +158,20 @@ class SheetDocument:
 
     def calc_cells(self) -> tuple[CalcCell, ...]:
         """The calc cells in file order."""
-        return tuple(block for block in self.blocks if isinstance(block, CalcCell))
+        return self._calc_cells
 
     def calc_cell_indices(self) -> tuple[int, ...]:
         """The block index of each calc cell, in file order."""
+        return self._calc_cell_indices
+
+    # Worked out once per document (it is frozen): an edit of a long sheet asks for them
+    # several times.
+    @cached_property
+    def _calc_cells(self) -> tuple[CalcCell, ...]:
+        return tuple(block for block in self.blocks if isinstance(block, CalcCell))
+
+    @cached_property
+    def _calc_cell_indices(self) -> tuple[int, ...]:
         return tuple(k for k, block in enumerate(self.blocks) if isinstance(block, CalcCell))
 
     def get(self, key: str, default: str | None = None) -> str | None:

@@ -59,7 +59,7 @@ class _NotCovered(Exception):
     """The expression needs the sympy path."""
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(slots=True)
 class _Walked:
     """One subtree's number: ``exact`` for a number written exactly (else None)."""
 
@@ -137,24 +137,25 @@ class _Walker:
         self.seen: dict[str, Binding] = {}
 
     def walk(self, node: t.Expr) -> _Walked:
-        if isinstance(node, t.Number):
-            value = node.value
+        kind = type(node)
+        if kind is t.Number:
+            value = node.value  # type: ignore[attr-defined]
             return _Walked(_double(value), _DIMENSIONLESS, value)
-        if isinstance(node, t.Name):
-            return self._name(node)
-        if isinstance(node, t.Unit):
-            return self._unit(node)
-        if isinstance(node, t.Neg):
-            inner = self.walk(node.operand)
+        if kind is t.Name:
+            return self._name(node)  # type: ignore[arg-type]
+        if kind is t.BinOp and node.op in "*/":  # type: ignore[attr-defined]
+            return self._product(node)  # type: ignore[arg-type]
+        if kind is t.Unit:
+            return self._unit(node)  # type: ignore[arg-type]
+        if kind is t.Power:
+            return self._power(self.walk(node.base), self.walk(node.exponent))  # type: ignore[attr-defined]
+        if kind is t.Neg:
+            inner = self.walk(node.operand)  # type: ignore[attr-defined]
             grad = {key: -d for key, d in inner.grad.items()} if inner.grad else None
             exact = -inner.exact if inner.exact is not None else None
             return _Walked(-inner.value, inner.dim, exact, grad)
-        if isinstance(node, t.BinOp) and node.op in "*/":
-            return self._product(node)
-        if isinstance(node, t.Power):
-            return self._power(self.walk(node.base), self.walk(node.exponent))
-        if isinstance(node, t.Call) and node.func == "sqrt" and len(node.args) == 1:
-            return self._power(self.walk(node.args[0]), None)
+        if kind is t.Call and node.func == "sqrt" and len(node.args) == 1:  # type: ignore[attr-defined]
+            return self._power(self.walk(node.args[0]), None)  # type: ignore[attr-defined]
         raise _NotCovered
 
     def lone(self, node: t.Expr) -> ResolvedUnit | None:
@@ -228,7 +229,7 @@ class _Walker:
             raise _NotCovered  # a computed exponent: the sympy path checks it
         power = Fraction(1, 2) if exponent is None else exponent.exact
         assert power is not None
-        if abs(power) > MAX_DIMENSION_POWER:
+        if abs(power.numerator) > MAX_DIMENSION_POWER * power.denominator:
             raise _NotCovered
         if exponent is not None and not exponent.dim.dimensionless:
             raise _NotCovered

@@ -161,6 +161,9 @@ class SheetEvaluator:
         self._slots: list[_Slot] = []
         self._sources: list[SourceStatement] = []  # slot sources, for a C-speed comparison
         self._results: list[StatementResult] = []  # one per slot after a run
+        self.rerun: list[int] | None = None
+        """Indices of the statements the last run evaluated, when it re-ran only those
+        (None after a full run): callers of a long sheet need not compare every result."""
         self._parse_cache: dict[tuple[int, str], tuple] = {}
         self._state: _RunState | None = None
         self._imports = ImportScope()
@@ -216,6 +219,7 @@ class SheetEvaluator:
         fast = self._run_changed_only(statements)
         if fast is not None:
             return fast
+        self.rerun = None
         with _collector_paused():
             return self._run_all(statements)
 
@@ -357,7 +361,9 @@ class SheetEvaluator:
                     if user > index and user not in done:
                         heapq.heappush(pending, user)
         if one_each:
+            self.rerun = sorted(done)
             return list(self._results)
+        self.rerun = None
         return [slot.result for slot in slots if slot.result is not None]
 
     def _evaluate_slot(

@@ -31,7 +31,9 @@ class _Parser:
 
     # --- token helpers ---
     def peek(self, offset: int = 0) -> Token:
-        return self.tokens[min(self.index + offset, len(self.tokens) - 1)]
+        index = self.index + offset
+        tokens = self.tokens
+        return tokens[index] if index < len(tokens) else tokens[-1]
 
     def take(self) -> Token:
         token = self.tokens[self.index]

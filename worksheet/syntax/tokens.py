@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import re
 import unicodedata
-from dataclasses import dataclass
 from enum import Enum
+from typing import NamedTuple
 
 from worksheet.errors import ParseError
 
@@ -22,8 +22,9 @@ class Kind(Enum):
     END = "end of statement"
 
 
-@dataclass(frozen=True)
-class Token:
+class Token(NamedTuple):
+    """One token with its position (a tuple: a line makes a few dozen of them)."""
+
     kind: Kind
     text: str
     line: int

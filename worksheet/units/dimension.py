@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
@@ -120,8 +121,11 @@ def _power_text(symbol: str, power: Fraction) -> str:
     return f"{symbol}^({power.numerator}/{power.denominator})"
 
 
+@functools.lru_cache(maxsize=1024)
 def compose_base_units(exponents: tuple[Fraction, ...]) -> str:
-    """``m^3/(kg*s^2)`` style text for an exponent vector (``1`` when dimensionless)."""
+    """``m^3/(kg*s^2)`` style text for an exponent vector (``1`` when dimensionless).
+
+    Cached: a sheet has few dimensions and every recorded value asks for its text."""
     top = [_power_text(u, p) for u, p in zip(BASE_UNITS, exponents, strict=True) if p > 0]
     bottom = [_power_text(u, -p) for u, p in zip(BASE_UNITS, exponents, strict=True) if p < 0]
     numerator = "*".join(top) if top else "1"
