@@ -21,6 +21,7 @@ results that are zero, infinite or subnormal.
 from __future__ import annotations
 
 import math
+import weakref
 from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
@@ -178,11 +179,11 @@ class _Walker:
             raise _NotCovered
         if binding.origin is Origin.CONSTANT:
             self.seen[node.id] = binding
-            value = binding.value
-            seed = _g_seed(name_g_power(node.id, evaluator.ctx), value, evaluator.ctx)
-            if not seed and binding.uncertainty:
-                seed = {node.id: 1.0}
-            return _Walked(value, binding.dimension, None, seed or None)
+            seed = _CONSTANT_SEEDS.get(binding, _UNSEEN)
+            if seed is _UNSEEN:
+                seed = _constant_seed(node.id, binding, evaluator)
+                _CONSTANT_SEEDS[binding] = seed
+            return _Walked(binding.value, binding.dimension, None, dict(seed) if seed else None)
         if (
             binding.origin not in (Origin.GIVEN, Origin.DERIVED)
             or binding.spread is not None
@@ -255,6 +256,24 @@ class _Walker:
                 raise _NotCovered
         grad = _combine((_double(power) * value / x, base.grad))
         return _Walked(value, dim, None, grad)
+
+
+_CONSTANT_SEEDS: weakref.WeakKeyDictionary[Binding, dict[str, float] | None] = (
+    weakref.WeakKeyDictionary()
+)
+"""A dataset constant's partials (its own, or G's): the same for every line that reads it."""
+_UNSEEN = object()
+
+
+def _constant_seed(
+    name: str, binding: Binding, evaluator: StatementEvaluator
+) -> dict[str, float] | None:
+    """What ``SymbolValues`` seeds a constant's dual number with."""
+    assert binding.value is not None
+    seed = _g_seed(name_g_power(name, evaluator.ctx), binding.value, evaluator.ctx)
+    if not seed and binding.uncertainty:
+        seed = {name: 1.0}
+    return seed or None
 
 
 def _double(value: Fraction) -> float:

@@ -31,7 +31,6 @@ from worksheet.engine.results import StatementResult
 from worksheet.engine.translate import describe
 from worksheet.errors import DimensionError, EvaluationError, NameResolutionError
 from worksheet.syntax import tree as t
-from worksheet.units.dimension import compose_base_units
 
 if TYPE_CHECKING:
     from worksheet.engine.context import Context
@@ -304,7 +303,7 @@ def ranged_definition(
         "ok",
         name=stmt.name,
         unit=unit,
-        si_unit=compose_base_units(dim.exponents),
+        si_unit=dim.base_units(),
         dimension=dim.name(),
     )
     result = sampled_result(ev, base, stmt.name, samples, (unit, factor, offset), stated)

@@ -62,7 +62,7 @@ from worksheet.errors import (
 )
 from worksheet.syntax import tree as t
 from worksheet.syntax.unparse import to_text
-from worksheet.units.dimension import Dimension, compose_base_units
+from worksheet.units.dimension import Dimension
 from worksheet.units.registry import ResolvedUnit
 
 KINDS = {
@@ -439,7 +439,7 @@ class StatementEvaluator:
                 name=name,
                 dimension=dim.name(),
                 symbolic_text=symbolic,
-                si_unit=compose_base_units(dim.exponents),
+                si_unit=dim.base_units(),
                 record=record,
                 unit=unit or None,
             )
@@ -491,7 +491,7 @@ class StatementEvaluator:
             value=shown,
             unit=unit or "",
             si_value=quantity.si,
-            si_unit=compose_base_units(dim.exponents),
+            si_unit=dim.base_units(),
             dimension=dim.name(),
             form=form,
             uncertainty=shown_u,
@@ -607,7 +607,7 @@ class StatementEvaluator:
             name=stmt.name,
             dimension=unit.dimension.name(),
             unit=stmt.unit.source,
-            si_unit=compose_base_units(unit.dimension.exponents),
+            si_unit=unit.dimension.base_units(),
             symbolic_text=stmt.name,
         ), binding
 
@@ -705,7 +705,7 @@ class StatementEvaluator:
             value=shown,
             unit=unit_text,
             si_value=quantity.si,
-            si_unit=compose_base_units(target.dimension.exponents),
+            si_unit=target.dimension.base_units(),
             dimension=target.dimension.name(),
             symbolic_text=monomial,
             message=note,

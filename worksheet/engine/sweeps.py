@@ -28,7 +28,7 @@ from worksheet.engine.numeric import (
 from worksheet.engine.results import StatementResult
 from worksheet.errors import DimensionError, EvaluationError, NameResolutionError
 from worksheet.syntax import tree as t
-from worksheet.units.dimension import Dimension, compose_base_units
+from worksheet.units.dimension import Dimension
 
 if TYPE_CHECKING:
     from worksheet.engine.statements import StatementEvaluator
@@ -193,7 +193,7 @@ def evaluate_scaling(ev: StatementEvaluator, stmt: t.Scaling) -> StatementResult
         value=at_point / factor,
         unit=unit,
         si_value=at_point,
-        si_unit=compose_base_units(target.dimension.exponents),
+        si_unit=target.dimension.base_units(),
         dimension=target.dimension.name(),
         record=record,
         detail=tuple(exponents),

@@ -20,6 +20,9 @@ MAX_FACTOR = 1e6
 """'within factor F' is a log-normal spread; wider than this is a log range's job."""
 
 RESERVED = frozenset({"check", "in", "within"})
+_OP = Kind.OP
+_ADDITIVE = ("+", "-")
+_MULTIPLICATIVE = ("*", "/")
 COMPARISONS = ("==", "<=", ">=", "<", ">", "~")
 
 
@@ -91,8 +94,9 @@ class _Parser:
         self.enter()
         try:
             node = self.term()
-            while self.peek().kind is Kind.OP and self.peek().text in ("+", "-"):
-                op = self.take()
+            tokens = self.tokens
+            while (op := tokens[self.index]).kind is _OP and op.text in _ADDITIVE:
+                self.index += 1
                 right = self.term()
                 node = t.BinOp(op.text, node, right, line=op.line, column=op.column)
             return node
@@ -101,15 +105,17 @@ class _Parser:
 
     def term(self) -> t.Expr:
         node = self.unary()
-        while self.peek().kind is Kind.OP and self.peek().text in ("*", "/"):
-            op = self.take()
+        tokens = self.tokens
+        while (op := tokens[self.index]).kind is _OP and op.text in _MULTIPLICATIVE:
+            self.index += 1
             right = self.unary()
             node = t.BinOp(op.text, node, right, line=op.line, column=op.column)
         return node
 
     def unary(self) -> t.Expr:
-        if self.peek().kind is Kind.OP and self.peek().text in ("+", "-"):
-            op = self.take()
+        op = self.tokens[self.index]
+        if op.kind is _OP and op.text in _ADDITIVE:
+            self.index += 1
             self.enter()
             try:
                 operand = self.unary()
@@ -122,7 +128,8 @@ class _Parser:
 
     def power(self) -> t.Expr:
         base = self.postfix()
-        if self.at("^"):
+        following = self.tokens[self.index]
+        if following.kind is _OP and following.text == "^":
             if isinstance(base, t.Unit):
                 raise self.error(
                     f"unit powers go inside the brackets: write [{base.unit.source}^2]"
@@ -138,9 +145,9 @@ class _Parser:
 
     def postfix(self) -> t.Expr:
         """A primary, with a unit bound to it when one follows a number or ')'."""
-        start = self.peek()
+        start = self.tokens[self.index]
         node = self.primary()
-        if self.peek().kind is Kind.UNIT:
+        if self.tokens[self.index].kind is Kind.UNIT:
             closes = self.tokens[self.index - 1].text == ")" if self.index else False
             if not (isinstance(node, t.Number) or closes):
                 raise self.error(
@@ -161,17 +168,18 @@ class _Parser:
         return node
 
     def primary(self) -> t.Expr:
-        token = self.peek()
+        token = self.tokens[self.index]
         if token.kind is Kind.NUMBER:
-            self.take()
+            self.index += 1
             return number_node(token)
         if token.kind is Kind.UNIT:
             unit, _ = self.expect_unit()
             return t.Unit(unit, line=token.line, column=token.column)
         if token.kind is Kind.NAME:
             check_name(token)
-            self.take()
-            if self.at("("):
+            self.index += 1
+            following = self.tokens[self.index]
+            if following.kind is _OP and following.text == "(":
                 return self.call(token)
             return t.Name(token.text, line=token.line, column=token.column)
         if self.at("("):
@@ -302,11 +310,12 @@ def number_node(token: Token) -> t.Number:
         )
     if len(mantissa.replace(".", "")) > 60:
         raise ParseError(f"number {literal[:20]}... has too many digits", token.line, token.column)
-    return t.Number(Fraction(literal), literal, line=token.line, column=token.column)
+    value = Fraction(int(literal)) if literal.isdigit() else Fraction(literal)
+    return t.Number(value, literal, line=token.line, column=token.column)
 
 
 def check_name(token: Token) -> None:
-    if token.text.startswith("_"):
+    if token.text[0] == "_":
         raise ParseError(
             f"names starting with '_' are refused ('{token.text}')", token.line, token.column
         )

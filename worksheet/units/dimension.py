@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import functools
 from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
@@ -109,6 +108,14 @@ class Dimension:
             object.__setattr__(self, "_words_cache", cached)
         return cached
 
+    def base_units(self) -> str:
+        """``compose_base_units`` of the exponents, worked out once per instance."""
+        cached = self.__dict__.get("_base_units")
+        if cached is None:
+            cached = compose_base_units(self.exponents)
+            object.__setattr__(self, "_base_units", cached)
+        return cached
+
     def __str__(self) -> str:
         return self.name()
 
@@ -121,11 +128,8 @@ def _power_text(symbol: str, power: Fraction) -> str:
     return f"{symbol}^({power.numerator}/{power.denominator})"
 
 
-@functools.lru_cache(maxsize=1024)
 def compose_base_units(exponents: tuple[Fraction, ...]) -> str:
-    """``m^3/(kg*s^2)`` style text for an exponent vector (``1`` when dimensionless).
-
-    Cached: a sheet has few dimensions and every recorded value asks for its text."""
+    """``m^3/(kg*s^2)`` style text for an exponent vector (``1`` when dimensionless)."""
     top = [_power_text(u, p) for u, p in zip(BASE_UNITS, exponents, strict=True) if p > 0]
     bottom = [_power_text(u, -p) for u, p in zip(BASE_UNITS, exponents, strict=True) if p < 0]
     numerator = "*".join(top) if top else "1"
