@@ -87,7 +87,11 @@ def _die_with_parent(parent_pid: int, use_death_signal: bool) -> None:
     """
     if use_death_signal and sys.platform.startswith("linux"):
         with contextlib.suppress(OSError, AttributeError, TypeError):
-            libc = ctypes.CDLL(ctypes.util.find_library("c") or None, use_errno=True)
+            # The running program's own symbols include libc's; find_library would run
+            # ldconfig (milliseconds at every worker start) and is needed only without.
+            libc = ctypes.CDLL(None, use_errno=True)
+            if not hasattr(libc, "prctl"):
+                libc = ctypes.CDLL(ctypes.util.find_library("c") or None, use_errno=True)
             libc.prctl(_PR_SET_PDEATHSIG, signal.SIGKILL, 0, 0, 0)
     if os.getppid() != parent_pid:
         os._exit(0)  # the parent ended before the signal was asked for
