@@ -91,3 +91,32 @@ def test_issue12_log_slope_of_a_monomial_is_what_simplify_gives(expr) -> None:
     slow = sympy.simplify(M0 * sympy.diff(expr, M0) / expr)
     assert fast == slow
     assert sympy.srepr(fast) == sympy.srepr(slow)
+
+
+def _stable_correlation_ratio(x, y, variance: float) -> float:
+    """The estimator as first written, with the stable sort always (the reference)."""
+    import numpy as np
+
+    from worksheet.engine.sampling import SHARE_BINS
+
+    order = np.argsort(x, kind="stable")
+    mean = float(np.mean(y))
+    total = 0.0
+    for group in np.array_split(y[order], SHARE_BINS):
+        total += group.size * (float(np.mean(group)) - mean) ** 2
+    return total / (y.size * variance)
+
+
+@pytest.mark.parametrize("ties", [False, True])
+def test_issue12_correlation_ratio_is_bit_for_bit_the_stable_sort_one(ties: bool) -> None:
+    import numpy as np
+
+    from worksheet.engine.sampling import _correlation_ratio
+
+    rng = np.random.default_rng(5)
+    x = rng.random(20_000)
+    if ties:
+        x = np.round(x, 2)  # many equal values: their order decides the bins
+    y = np.sin(7 * x) + 0.3 * rng.random(x.size)
+    variance = float(np.var(y))
+    assert _correlation_ratio(x, y, variance) == _stable_correlation_ratio(x, y, variance)
