@@ -1,4 +1,8 @@
-"""The float walk over the parsed tree records exactly what the sympy path records."""
+"""The lazy path (no sympy form until printed) records exactly what the eager path records.
+
+Both take a product's numbers from the walk over the parsed tree; ``ENABLED = False``
+builds every form at once and sends every error through the translator, so these tests
+check that leaving the form for later changes no record, message or JSON byte."""
 
 from __future__ import annotations
 
