@@ -6,6 +6,7 @@ check that leaving the form for later changes no record, message or JSON byte.""
 
 from __future__ import annotations
 
+import importlib.util
 import json
 import random
 import sys
@@ -14,11 +15,11 @@ from pathlib import Path
 
 import pytest
 import sympy
-from hypothesis import given
+from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from worksheet import cli
-from worksheet.engine import fast_numeric
+from worksheet.engine import SheetEvaluator, fast_numeric, make_context, split_statements
 from worksheet.engine.numeric import FLOAT
 from worksheet.syntax import tree as t
 
@@ -139,3 +140,35 @@ def test_issue12_walk_numbers_are_the_doubles_of_sympy_rationals(value) -> None:
         walked = None  # the walk gives up; the sympy path says what it gives
     if walked is not None:
         assert walked == FLOAT.number(sympy.Rational(value.numerator, value.denominator))
+
+
+_grammar_spec = importlib.util.spec_from_file_location(
+    "statement_grammar", Path(__file__).with_name("statement_grammar.py")
+)
+assert _grammar_spec is not None and _grammar_spec.loader is not None
+grammar = importlib.util.module_from_spec(_grammar_spec)
+_grammar_spec.loader.exec_module(grammar)
+
+
+def _records(body: str) -> list[tuple]:
+    context = make_context("CODATA2022", digits=4, seconds=1.0)
+    try:
+        results = SheetEvaluator(context).run(split_statements(body, 1))
+        return [(r.line, r.status, r.record, r.message, r.to_json()) for r in results]
+    finally:
+        context.worker.close()
+
+
+@settings(max_examples=120, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(grammar.STATEMENTS)
+def test_issue12_lazy_and_eager_paths_agree_on_hostile_statements(statement: str) -> None:
+    """A line the walk takes must record what the translator-first path records, errors
+    included (the walk gives up wherever the translator would refuse)."""
+    body = grammar.sheet_body(statement)
+    lazy = _records(body)
+    fast_numeric.ENABLED = False
+    try:
+        eager = _records(body)
+    finally:
+        fast_numeric.ENABLED = True
+    assert lazy == eager
