@@ -128,3 +128,16 @@ def test_issue12_lazy_form_uses_the_bindings_the_line_saw() -> None:
     assert second[1].status == "error"
     assert isinstance(first[1].form, fast_numeric.LazyForm)
     assert first[1].si_value == 6.0 and first[1].symbolic == "3*x"
+
+
+def test_issue12_many_edits_keep_the_parse_cache_bounded() -> None:
+    """Each edit parses a new text; an app session of thousands of edits must not keep
+    them all."""
+    evaluator = SheetEvaluator(make_context())
+    given_line = SourceStatement(1, "M = 5e11 [kg]")
+    try:
+        for k in range(3000):
+            evaluator.run([given_line, SourceStatement(2, f"r = 2*G*M/c^2  # edit {k}")])
+    finally:
+        evaluator.ctx.worker.close()
+    assert len(evaluator._parse_cache) <= 4 * 2 + 1000 + 1

@@ -318,6 +318,10 @@ class SheetEvaluator:
         for index in changed:
             parsed, defines, uses = self._parse(statements[index])
             slots[index] = _Slot(statements[index], parsed, defines, uses)
+        if len(self._parse_cache) > 4 * len(slots) + 1000:  # an app session's many edits
+            self._parse_cache = {
+                (slot.source.line, slot.source.text): self._parse(slot.source) for slot in slots
+            }
         self._sources = list(statements)
         users = state.users
         for index in changed:  # the reverse map may gain names the new text reads
