@@ -93,6 +93,45 @@ def test_issue12_tree_walk_matches_the_sympy_walk(expression: str) -> None:
     assert walked.unit == reference.unit and walked.dimension == reference.dimension
 
 
+LENGTHS = ["a", "(3 [km])", "(c*b)", "(hbar/(M*c))", "(G*M/c^2)", "(0.5 [pc])", "(-a)"]
+FACTORS = ["n", "2", "7/3", "pi", "sqrt(n)", "(n - 1)", "(1/n + 2)"]
+
+
+def sums() -> st.SearchStrategy[str]:
+    """Sums and differences of lengths scaled by dimensionless factors (one dimension)."""
+    term = st.tuples(st.sampled_from(FACTORS), st.sampled_from(LENGTHS)).map(
+        lambda p: f"{p[0]}*{p[1]}"
+    )
+    return st.lists(st.tuples(st.sampled_from(["+", "-"]), term), min_size=1, max_size=6).map(
+        lambda parts: "".join(f" {op} {text}" for op, text in parts).lstrip(" +")
+    )
+
+
+@settings(max_examples=150, deadline=None)
+@given(sums())
+def test_issue12_tree_walk_matches_the_sympy_walk_on_sums(expression: str) -> None:
+    """Sums take the walk too, and agree with the sympy walk to rounding."""
+    monkeypatch = pytest.MonkeyPatch()
+    try:
+        walked = last_result(expression)
+        reference = sympy_order_result(expression, monkeypatch)
+    finally:
+        monkeypatch.undo()
+    assert walked.status == reference.status, (expression, walked.record, reference.record)
+    if reference.si_value is None or walked.si_value is None:
+        assert walked.record == reference.record
+        return
+    # Both add the same terms correctly rounded; the terms themselves (products) may
+    # differ in their last bits, and a sum with cancellation is the guard's (both paths
+    # then take the sympy walk).
+    assert math.isclose(walked.si_value, reference.si_value, rel_tol=1e-12), (
+        expression,
+        walked.si_value,
+        reference.si_value,
+    )
+    assert walked.unit == reference.unit
+
+
 def test_issue12_tree_walk_covers_the_hawking_temperature(monkeypatch) -> None:
     """The plainest derivation line takes the walk and builds no sympy form until printed."""
     calls = []
@@ -141,3 +180,28 @@ def test_issue12_many_edits_keep_the_parse_cache_bounded() -> None:
     finally:
         evaluator.ctx.worker.close()
     assert len(evaluator._parse_cache) <= 4 * 2 + 1000 + 1
+
+
+def test_issue12_a_sum_that_cancels_is_left_to_the_guard_of_the_sympy_path(monkeypatch) -> None:
+    """x + y - 0.3 with x = 0.1, y = 0.2 leaves 5.6e-17 in doubles, but about 2.8e-17 with
+    the literal 0.3 exact: the walk's 50-digit check sees the disagreement and hands the
+    line to the sympy path, which records the loss. A plain sum takes the walk."""
+    lines = ["x = 0.1", "y = 0.2", "r = x + y - 0.3", "s = x + 2*x - y"]
+    walked = []
+    real = fast_numeric.walk_quantity
+
+    def watching(evaluator, node):
+        result = real(evaluator, node)
+        walked.append(result is not None)
+        return result
+
+    monkeypatch.setattr(fast_numeric, "walk_quantity", watching)
+    evaluator = SheetEvaluator(make_context())
+    try:
+        results = evaluator.run([SourceStatement(k + 1, text) for k, text in enumerate(lines)])
+    finally:
+        evaluator.ctx.worker.close()
+    assert walked[2] is False
+    assert results[2].precision is not None and "rounding error" in results[2].precision
+    assert walked[3] is True
+    assert results[3].si_value == math.fsum([0.1, 2 * 0.1, -0.2])

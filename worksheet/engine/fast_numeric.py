@@ -1,21 +1,24 @@
-"""The numbers of a product-and-power expression, walked over the parsed tree in written order.
+"""The numbers of an expression of products, powers and sums, walked over the parsed tree.
 
-Most lines of a derivation sheet are products, quotients and powers of numbers, units,
-constants and names already computed: ``T_H = hbar*c^3/(8*pi*G*M*k_B)``. Their double and
-their partial derivatives (for the uncertainty) come from one walk over the parsed tree,
-in the order the line is written, whichever path builds the symbolic form. The sympy form
-is then needed only when someone prints it, so the fast path builds it lazily
+Most lines of a derivation sheet are products, quotients, powers and sums of numbers,
+units, constants and names already computed: ``T_H = hbar*c^3/(8*pi*G*M*k_B)``. Their
+double and their partial derivatives (for the uncertainty) come from one walk over the
+parsed tree, in the order the line is written, whichever path builds the symbolic form. The
+sympy form is then needed only when someone prints it, so the fast path builds it lazily
 (``LazyForm``) from the bindings the line saw.
 
 Exact numbers are folded exactly while they meet only exact numbers (``2/3``, ``10^-3``),
 as sympy would, and become a double when they meet a double. Each product and quotient of
-doubles is one correctly rounded operation, so the walk is as accurate as the sympy walk
-(which multiplies in sympy's canonical order instead); the two can differ in the last bit.
+doubles is one correctly rounded operation; the terms of a chain of sums are added at once
+by ``math.fsum``, as sympy's walk adds an ``Add``. So the walk is as accurate as the sympy
+walk (which multiplies in sympy's canonical order instead); the two can differ in the last
+bit. A sum is checked by the precision guard at 50 digits over the same tree; where the
+guard finds a loss, the sympy path records it.
 
 What the walk does not cover returns None and takes the sympy path, which gives every
-error message and the precision guard: sums and differences (cancellation), functions
-other than ``sqrt``, verbs, relations, symbolic names, offset units, ranged inputs, and
-results that are zero, infinite or subnormal.
+error message: functions other than ``sqrt``, verbs, relations, symbolic names, offset
+units, ranged inputs, sums of different dimensions or with a bare 0, and results that are
+zero, infinite or subnormal.
 """
 
 from __future__ import annotations
@@ -29,8 +32,10 @@ from typing import TYPE_CHECKING
 
 from worksheet.engine.bindings import Binding, Origin
 from worksheet.engine.figures import (
+    _MP,
     Figures,
     _g_seed,
+    judge_precision,
     name_g_power,
     propagated_uncertainty,
     unit_g_power,
@@ -68,6 +73,7 @@ class _Walked:
     dim: Dimension
     exact: Fraction | None = None
     grad: dict[str, float] | None = None  # d value / d input; None: no uncertain input
+    terms: list[float] | None = None  # a sum's terms, flattened (summed exactly by fsum)
 
 
 @dataclass(frozen=True, slots=True)
@@ -84,17 +90,22 @@ class WalkedQuantity:
 def walk_quantity(evaluator: StatementEvaluator, node: t.Expr) -> WalkedQuantity | None:
     """The numbers of ``node`` from the parsed tree, or None where the sympy path is needed."""
     walker = _Walker(evaluator)
+    precise = None
     try:
         walked = walker.walk(node)
         value = float(walked.exact) if walked.exact is not None else walked.value
+        if not (math.isfinite(value) and abs(value) >= 2.3e-308):
+            return None  # zero, inf and subnormal values: the precision guard looks at these
+        if walker.has_sum and evaluator.ctx.guard:
+            precise, loss = judge_precision(value, walker.precise(node))
+            if loss is not None:
+                return None  # the sympy path words the loss (and finds the same numbers)
     except (_NotCovered, WorksheetError, OverflowError, ZeroDivisionError, ValueError):
         return None
-    if not (math.isfinite(value) and abs(value) >= 2.3e-308):
-        return None  # zero, inf and subnormal values: the precision guard looks at these
     gradient = {key: d for key, d in (walked.grad or {}).items() if d != 0}
     uncertainty = propagated_uncertainty(value, gradient, evaluator._input_uncertainty)
     return WalkedQuantity(
-        Figures(value, None, gradient, uncertainty),
+        Figures(value, precise, gradient, uncertainty),
         walked.dim,
         walker.lone(node),
         tuple(walker.used),
@@ -136,6 +147,7 @@ class _Walker:
         self.evaluator = evaluator
         self.used: list[str] = []
         self.seen: dict[str, Binding] = {}
+        self.has_sum = False  # then the precision guard checks the double (cancellation)
 
     def walk(self, node: t.Expr) -> _Walked:
         kind = type(node)
@@ -144,8 +156,10 @@ class _Walker:
             return _Walked(_double(value), _DIMENSIONLESS, value)
         if kind is t.Name:
             return self._name(node)  # type: ignore[arg-type]
-        if kind is t.BinOp and node.op in "*/":  # type: ignore[attr-defined]
-            return self._product(node)  # type: ignore[arg-type]
+        if kind is t.BinOp:
+            if node.op in "*/":  # type: ignore[attr-defined]
+                return self._product(node)  # type: ignore[arg-type]
+            return self._sum(node)  # type: ignore[arg-type]
         if kind is t.Unit:
             return self._unit(node)  # type: ignore[arg-type]
         if kind is t.Power:
@@ -154,7 +168,8 @@ class _Walker:
             inner = self.walk(node.operand)  # type: ignore[attr-defined]
             grad = {key: -d for key, d in inner.grad.items()} if inner.grad else None
             exact = -inner.exact if inner.exact is not None else None
-            return _Walked(-inner.value, inner.dim, exact, grad)
+            terms = [-term for term in inner.terms] if inner.terms else None
+            return _Walked(-inner.value, inner.dim, exact, grad, terms)
         if kind is t.Call and node.func == "sqrt" and len(node.args) == 1:  # type: ignore[attr-defined]
             return self._power(self.walk(node.args[0]), None)  # type: ignore[attr-defined]
         raise _NotCovered
@@ -223,6 +238,54 @@ class _Walker:
             value = a / b
             grad = _combine((1 / b, left.grad), (-value / b, right.grad))
         return _Walked(value, dim, None, grad)
+
+    def _sum(self, node: t.BinOp) -> _Walked:
+        """``a + b`` or ``a - b`` of one dimension: all the terms of a chain of sums are
+        added at once by ``math.fsum`` (correctly rounded, as sympy's walk adds them)."""
+        left, right = self.walk(node.left), self.walk(node.right)
+        if left.dim != right.dim or left.exact == 0 or right.exact == 0:
+            raise _NotCovered  # a mismatch is the sympy path's to word; 0 of any dimension
+        sign = 1.0 if node.op == "+" else -1.0
+        if left.exact is not None and right.exact is not None:
+            exact = left.exact + right.exact if sign > 0 else left.exact - right.exact
+            return _Walked(_double(exact), left.dim, _bounded(exact))
+        self.has_sum = True
+        right_terms = right.terms or [_double_of(right)]
+        terms = (left.terms or [_double_of(left)]) + [sign * term for term in right_terms]
+        grad = _combine((1.0, left.grad), (sign, right.grad))
+        return _Walked(math.fsum(terms), left.dim, None, grad, terms)
+
+    def precise(self, node: t.Expr) -> object:
+        """The expression at the precision guard's 50 digits, from the values the walk read
+        (as ``figures.SymbolValues`` gives them to the sympy path's guard)."""
+        mp = _MP.mp
+        kind = type(node)
+        if kind is t.Number:
+            value = node.value  # type: ignore[attr-defined]
+            return mp.mpf(value.numerator) / value.denominator
+        if kind is t.Name:
+            if node.id == "pi":  # type: ignore[attr-defined]
+                return +mp.pi
+            binding = self.seen[node.id]  # type: ignore[attr-defined]
+            if binding.origin is Origin.CONSTANT:
+                return mp.mpf(self.evaluator.ctx.dataset.constants[binding.name].value)
+            return binding.precise if binding.precise is not None else mp.mpf(binding.value)
+        if kind is t.Unit:
+            unit = self.evaluator.ctx.registry.resolve(node.unit, node.line, node.column)  # type: ignore[attr-defined]
+            return mp.mpf(unit.factor)
+        if kind is t.Neg:
+            return -self.precise(node.operand)  # type: ignore[attr-defined]
+        if kind is t.BinOp:
+            a, b = self.precise(node.left), self.precise(node.right)  # type: ignore[attr-defined]
+            op = node.op  # type: ignore[attr-defined]
+            if op == "+":
+                return a + b
+            if op == "-":
+                return a - b
+            return a * b if op == "*" else a / b
+        if kind is t.Power:
+            return _MP.power(self.precise(node.base), self.precise(node.exponent))  # type: ignore[attr-defined]
+        return mp.sqrt(self.precise(node.args[0]))  # type: ignore[attr-defined]
 
     def _power(self, base: _Walked, exponent: _Walked | None) -> _Walked:
         """``base^exponent``; ``exponent`` None is ``sqrt``."""

@@ -272,6 +272,12 @@ def _guard(expr: sympy.Expr, value: float, values: Mapping) -> tuple[Any, str | 
         return None, None  # the guard cannot judge this expression; the double stands
     except (ValueError, ZeroDivisionError, TypeError):
         return None, None
+    return judge_precision(value, precise)
+
+
+def judge_precision(value: float, precise: Any) -> tuple[Any, str | None]:
+    """(the 50-digit value, why the double disagrees with it or None); raises where the
+    precise value shows there is no recordable real number."""
     mp = _MP.mp
     if not isinstance(precise, mp.mpf):  # e.g. the square root of a negative number
         raise EvaluationError(f"the value is not a real number (about {mp.nstr(precise, 4)})")
