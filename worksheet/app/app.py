@@ -21,7 +21,7 @@ from textual.screen import ModalScreen, Screen
 from textual.theme import BUILTIN_THEMES
 from textual.timer import Timer
 from textual.widget import Widget
-from textual.widgets import Footer, Static, TextArea
+from textual.widgets import Static, TextArea
 from textual.worker import get_current_worker
 
 from worksheet.app.keys import KEY_ACTIONS, app_bindings
@@ -40,6 +40,7 @@ from worksheet.app.theme_files import (
 )
 from worksheet.app.widgets.calc_cell import CalcCellView
 from worksheet.app.widgets.calc_editor import CalcEditor
+from worksheet.app.widgets.key_hints import KeyHints
 from worksheet.app.widgets.ledger import QuantityLedger
 from worksheet.app.widgets.links import QuantityLinks
 from worksheet.app.widgets.note_cell import NoteCellView
@@ -125,7 +126,7 @@ class WorksheetApp(App[int]):
                 yield QuantityLinks(id="links")
         yield Static(id="at-cursor")
         yield StatusLine(id="status")
-        yield Footer()
+        yield KeyHints()
 
     def get_theme_variable_defaults(self) -> dict[str, str]:
         # Our state colours exist in every theme, textual's own included.
