@@ -106,6 +106,7 @@ class WorksheetApp(App[int]):
         self._last_recovery: str | None = None
         self._closed = False
         self._notes_rendered = False  # notes show their source text until after first paint
+        self._open_error: WorksheetError | None = None
         self._notice = ""  # the last cell operation, kept in the status line
         # Where the sheet's focus was when the panel key moved it to the side panel.
         self._place: tuple[Widget, float] | None = None
@@ -116,9 +117,14 @@ class WorksheetApp(App[int]):
     # ----- building the screen
 
     def compose(self) -> ComposeResult:
+        # The sheet is read here, so its cells are composed with the rest of the screen.
+        try:
+            self.session = SheetSession.open(self.sheet_path)
+        except WorksheetError as err:
+            self._open_error = err
         yield Static(id="title")
         with Horizontal(id="body"):
-            yield SheetView(id="sheet")
+            yield SheetView(self.session.doc if self.session else None, id="sheet")
             with Vertical(id="side"):
                 yield Static(Text("Quantities"), classes="panel-title")
                 yield QuantityLedger(id="ledger")
@@ -134,17 +140,17 @@ class WorksheetApp(App[int]):
 
     async def on_mount(self) -> None:
         self.watch(self.screen, "focused", self._focus_moved, init=False)
-        try:
-            self.session = SheetSession.open(self.sheet_path)
-        except WorksheetError as err:
-            self.exit(2, message=f"cannot open {self.sheet_path.name}: {err.located()}")
+        if self.session is None:
+            err = self._open_error
+            where = err.located() if err is not None else "not read"
+            self.exit(2, message=f"cannot open {self.sheet_path.name}: {where}")
             return
         self.query_one(QuantityLinks).show(None)
         # Paint the sheet with the results its file records first, then compute: the run
         # would otherwise compete with the first paint for the interpreter.
         # A new sheet starts in its empty calc cell, so the first keys typed go into it.
         first = 0 if self.session.saved is not None else self._first_calc_block()
-        await self._show_document(first, run=False, source_notes=True)
+        self._place_focus(first)
         self.say(RECORDED_NOTICE)
         self.call_after_refresh(self._after_first_paint)
         self.set_interval(self.RECOVERY_SECONDS, self.keep_recovery)
@@ -246,7 +252,6 @@ class WorksheetApp(App[int]):
         focus: int | None,
         cursor: tuple[int, int] | None = None,
         run: bool = True,
-        source_notes: bool = False,
     ) -> None:
         """Rebuild every cell view from the session and run the sheet (at once by default).
 
@@ -254,9 +259,18 @@ class WorksheetApp(App[int]):
         focused cell.
         """
         assert self.session is not None
+        scrolled = self.sheet.scroll_y
+        await self.sheet.rebuild(self.session.doc)
+        self._place_focus(focus, cursor, scrolled)
+        if run:
+            self.start_run()
+
+    def _place_focus(
+        self, focus: int | None, cursor: tuple[int, int] | None = None, scrolled: float = 0.0
+    ) -> None:
+        """Focus the cell ``focus`` (cursor back in place) and scroll back to ``scrolled``,
+        then only as far as needed to show that cell once it is laid out."""
         sheet = self.sheet
-        scrolled = sheet.scroll_y
-        await sheet.rebuild(self.session.doc, source_notes=source_notes)
         view = sheet.focus_block(focus, cursor) if focus is not None else None
 
         def back_in_place() -> None:
@@ -266,8 +280,6 @@ class WorksheetApp(App[int]):
 
         self.call_after_refresh(back_in_place)
         self._refresh_title()
-        if run:
-            self.start_run()
 
     @property
     def settled(self) -> bool:

@@ -35,12 +35,17 @@ class CalcCellView(Vertical):
             self.index = index
             self.text = text
 
-    def __init__(self, index: int, text: str, first_line: int) -> None:
+    def __init__(
+        self, index: int, text: str, first_line: int, recorded: Iterable[str] = ()
+    ) -> None:
+        """``recorded``: the result lines the file holds, shown until a run replaces them."""
         super().__init__(classes="cell calc-cell")
         self.index = index
         self.first_line = first_line
         self._initial = text
-        self._results: list[ResultLines | PlotChart] = [ResultLines()]
+        lines = ResultLines()
+        lines.show_recorded(recorded)
+        self._results: list[ResultLines | PlotChart] = [lines]
 
     def compose(self) -> ComposeResult:
         yield Static(self._header(), classes="cell-header")
@@ -107,9 +112,6 @@ class CalcCellView(Vertical):
 
     def show_waiting(self, message: str) -> None:
         self._only_lines().show_waiting(message)
-
-    def show_recorded(self, lines: Iterable[str]) -> None:
-        self._only_lines().show_recorded(lines)
 
     def place(self, index: int, first_line: int) -> None:
         """Update where the cell sits after edits elsewhere in the sheet."""
