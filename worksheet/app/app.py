@@ -29,6 +29,7 @@ from worksheet.app.lazy_service import LazyRunService
 from worksheet.app.pauses import settle_long_lived
 from worksheet.app.recovery import newer_recovery, remove_recovery, write_recovery
 from worksheet.app.screens.choice import ChoiceScreen
+from worksheet.app.screens.sheet import SheetScreen
 from worksheet.app.session import SheetSession
 from worksheet.app.theme_files import (
     FALLBACK,
@@ -133,6 +134,9 @@ class WorksheetApp(App[int]):
         yield Static(id="at-cursor")
         yield StatusLine(id="status")
         yield KeyHints()
+
+    def get_default_screen(self) -> Screen:
+        return SheetScreen(id="_default")
 
     def get_theme_variable_defaults(self) -> dict[str, str]:
         # Our state colours exist in every theme, textual's own included.
