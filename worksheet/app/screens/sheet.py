@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from textual import events
 from textual.screen import Screen
 
 
@@ -14,3 +15,13 @@ class SheetScreen(Screen[None]):
     """
 
     AUTO_FOCUS = ""
+
+    _resumed = False
+
+    def _on_screen_resume(self, event: events.ScreenResume) -> None:
+        # The first resume is the app's start: every widget was styled as it was mounted,
+        # with the theme already set, so textual's second styling pass would change nothing.
+        if not self._resumed:
+            self._resumed = True
+            event.refresh_styles = False
+        super()._on_screen_resume(event)
