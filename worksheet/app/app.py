@@ -48,7 +48,6 @@ from worksheet.app.widgets.note_cell import NoteCellView
 from worksheet.app.widgets.result_lines import STATUS_WORDS, result_text
 from worksheet.app.widgets.sheet_view import SheetView
 from worksheet.app.widgets.status_line import StatusLine
-from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET, load_dataset
 from worksheet.document import CalcCell, atomic_write_text, parse_document, render_document
 from worksheet.errors import WorksheetError
 
@@ -517,6 +516,8 @@ class WorksheetApp(App[int]):
         self.sheet.focus_block(index if index is not None else 0)
 
     def action_find_constant(self) -> None:
+        from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET, load_dataset
+
         target = self.focused if isinstance(self.focused, TextArea) else None
         # The front matter's dataset, read as the runner reads it (a bad name is reported
         # by the run); the runner itself is not imported here, it would load the engine.

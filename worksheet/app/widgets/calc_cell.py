@@ -13,11 +13,10 @@ from textual.message import Message
 from textual.widgets import Static, TextArea
 
 from worksheet.app.widgets.calc_editor import CalcEditor
-from worksheet.app.widgets.histogram_chart import chart_class, chart_widget
-from worksheet.app.widgets.plot_chart import PlotChart
 from worksheet.app.widgets.result_lines import PlotPart, ResultLines, result_parts
 
-if TYPE_CHECKING:  # the engine loads after the first paint
+if TYPE_CHECKING:  # the engine and the charts load after the first paint
+    from worksheet.app.widgets.plot_chart import PlotChart
     from worksheet.engine import StatementResult
 
 
@@ -77,6 +76,9 @@ class CalcCellView(Vertical):
         the same (the usual case while typing); otherwise the ones after the first are
         replaced.
         """
+        from worksheet.app.widgets.histogram_chart import chart_class, chart_widget
+        from worksheet.app.widgets.plot_chart import PlotChart
+
         parts = result_parts(results)
         widgets = self._result_widgets()
         kinds = [
