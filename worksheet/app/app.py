@@ -122,6 +122,8 @@ class WorksheetApp(App[int]):
             self.session = SheetSession.open(self.sheet_path)
         except WorksheetError as err:
             self._open_error = err
+        # Narrow from the start, so the widgets are not styled twice before the first paint.
+        self.screen.set_class(self.size.width < NARROW_WIDTH, "-narrow", update=False)
         yield Static(id="title")
         with Horizontal(id="body"):
             yield SheetView(self.session.doc if self.session else None, id="sheet")
