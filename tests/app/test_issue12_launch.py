@@ -91,6 +91,20 @@ def test_issue12_first_paint_modules_do_not_import_sympy() -> None:
     assert done.stdout.strip() == "[]"
 
 
+# Modules only a later step needs: the dataset (the constants finder, a new sheet's
+# front matter), the chart widgets (a run's plots), rendered Markdown (after the paint).
+LATER = ("worksheet.constants", "worksheet.app.chart_canvas", "textual.widgets._markdown")
+LATER_IMPORTS = IMPORTS.replace('("sympy", "numpy", "pint", "worksheet.engine")', repr(LATER))
+
+
+def test_issue12_first_paint_modules_leave_later_steps_unloaded() -> None:
+    done = subprocess.run(
+        [sys.executable, "-c", LATER_IMPORTS], capture_output=True, text=True, cwd=ROOT, timeout=120
+    )
+    assert done.returncode == 0, done.stderr
+    assert done.stdout.strip() == "[]"
+
+
 def test_issue12_note_source_joins_paragraph_lines_and_keeps_blocks() -> None:
     from worksheet.app.widgets.note_cell import source_text
 

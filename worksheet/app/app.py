@@ -21,7 +21,7 @@ from textual.screen import ModalScreen, Screen
 from textual.theme import BUILTIN_THEMES
 from textual.timer import Timer
 from textual.widget import Widget
-from textual.widgets import Footer, Static, TextArea
+from textual.widgets import Static, TextArea
 from textual.worker import get_current_worker
 
 from worksheet.app.keys import KEY_ACTIONS, app_bindings
@@ -29,6 +29,7 @@ from worksheet.app.lazy_service import LazyRunService
 from worksheet.app.pauses import settle_long_lived
 from worksheet.app.recovery import newer_recovery, remove_recovery, write_recovery
 from worksheet.app.screens.choice import ChoiceScreen
+from worksheet.app.screens.sheet import SheetScreen
 from worksheet.app.session import SheetSession
 from worksheet.app.theme_files import (
     FALLBACK,
@@ -40,13 +41,13 @@ from worksheet.app.theme_files import (
 )
 from worksheet.app.widgets.calc_cell import CalcCellView
 from worksheet.app.widgets.calc_editor import CalcEditor
+from worksheet.app.widgets.key_hints import KeyHints
 from worksheet.app.widgets.ledger import QuantityLedger
 from worksheet.app.widgets.links import QuantityLinks
 from worksheet.app.widgets.note_cell import NoteCellView
 from worksheet.app.widgets.result_lines import STATUS_WORDS, result_text
 from worksheet.app.widgets.sheet_view import SheetView
 from worksheet.app.widgets.status_line import StatusLine
-from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET, load_dataset
 from worksheet.document import CalcCell, atomic_write_text, parse_document, render_document
 from worksheet.errors import WorksheetError
 
@@ -105,6 +106,7 @@ class WorksheetApp(App[int]):
         self._last_recovery: str | None = None
         self._closed = False
         self._notes_rendered = False  # notes show their source text until after first paint
+        self._open_error: WorksheetError | None = None
         self._notice = ""  # the last cell operation, kept in the status line
         # Where the sheet's focus was when the panel key moved it to the side panel.
         self._place: tuple[Widget, float] | None = None
@@ -115,9 +117,16 @@ class WorksheetApp(App[int]):
     # ----- building the screen
 
     def compose(self) -> ComposeResult:
+        # The sheet is read here, so its cells are composed with the rest of the screen.
+        try:
+            self.session = SheetSession.open(self.sheet_path)
+        except WorksheetError as err:
+            self._open_error = err
+        # Narrow from the start, so the widgets are not styled twice before the first paint.
+        self.screen.set_class(self.size.width < NARROW_WIDTH, "-narrow", update=False)
         yield Static(id="title")
         with Horizontal(id="body"):
-            yield SheetView(id="sheet")
+            yield SheetView(self.session.doc if self.session else None, id="sheet")
             with Vertical(id="side"):
                 yield Static(Text("Quantities"), classes="panel-title")
                 yield QuantityLedger(id="ledger")
@@ -125,7 +134,10 @@ class WorksheetApp(App[int]):
                 yield QuantityLinks(id="links")
         yield Static(id="at-cursor")
         yield StatusLine(id="status")
-        yield Footer()
+        yield KeyHints()
+
+    def get_default_screen(self) -> Screen:
+        return SheetScreen(id="_default")
 
     def get_theme_variable_defaults(self) -> dict[str, str]:
         # Our state colours exist in every theme, textual's own included.
@@ -133,17 +145,17 @@ class WorksheetApp(App[int]):
 
     async def on_mount(self) -> None:
         self.watch(self.screen, "focused", self._focus_moved, init=False)
-        try:
-            self.session = SheetSession.open(self.sheet_path)
-        except WorksheetError as err:
-            self.exit(2, message=f"cannot open {self.sheet_path.name}: {err.located()}")
+        if self.session is None:
+            err = self._open_error
+            where = err.located() if err is not None else "not read"
+            self.exit(2, message=f"cannot open {self.sheet_path.name}: {where}")
             return
         self.query_one(QuantityLinks).show(None)
         # Paint the sheet with the results its file records first, then compute: the run
         # would otherwise compete with the first paint for the interpreter.
         # A new sheet starts in its empty calc cell, so the first keys typed go into it.
         first = 0 if self.session.saved is not None else self._first_calc_block()
-        await self._show_document(first, run=False, source_notes=True)
+        self._place_focus(first)
         self.say(RECORDED_NOTICE)
         self.call_after_refresh(self._after_first_paint)
         self.set_interval(self.RECOVERY_SECONDS, self.keep_recovery)
@@ -245,7 +257,6 @@ class WorksheetApp(App[int]):
         focus: int | None,
         cursor: tuple[int, int] | None = None,
         run: bool = True,
-        source_notes: bool = False,
     ) -> None:
         """Rebuild every cell view from the session and run the sheet (at once by default).
 
@@ -253,9 +264,18 @@ class WorksheetApp(App[int]):
         focused cell.
         """
         assert self.session is not None
+        scrolled = self.sheet.scroll_y
+        await self.sheet.rebuild(self.session.doc)
+        self._place_focus(focus, cursor, scrolled)
+        if run:
+            self.start_run()
+
+    def _place_focus(
+        self, focus: int | None, cursor: tuple[int, int] | None = None, scrolled: float = 0.0
+    ) -> None:
+        """Focus the cell ``focus`` (cursor back in place) and scroll back to ``scrolled``,
+        then only as far as needed to show that cell once it is laid out."""
         sheet = self.sheet
-        scrolled = sheet.scroll_y
-        await sheet.rebuild(self.session.doc, source_notes=source_notes)
         view = sheet.focus_block(focus, cursor) if focus is not None else None
 
         def back_in_place() -> None:
@@ -265,8 +285,6 @@ class WorksheetApp(App[int]):
 
         self.call_after_refresh(back_in_place)
         self._refresh_title()
-        if run:
-            self.start_run()
 
     @property
     def settled(self) -> bool:
@@ -500,6 +518,8 @@ class WorksheetApp(App[int]):
         self.sheet.focus_block(index if index is not None else 0)
 
     def action_find_constant(self) -> None:
+        from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET, load_dataset
+
         target = self.focused if isinstance(self.focused, TextArea) else None
         # The front matter's dataset, read as the runner reads it (a bad name is reported
         # by the run); the runner itself is not imported here, it would load the engine.

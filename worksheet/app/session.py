@@ -6,7 +6,6 @@ import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from worksheet.constants import DEFAULT_DATASET
 from worksheet.document import (
     CalcCell,
     NoteBlock,
@@ -65,6 +64,8 @@ class SheetSession:
     def open(cls, path: Path) -> SheetSession:
         """Read ``path``; a missing file gives a new sheet (not written until saved)."""
         if not path.exists():
+            from worksheet.constants import DEFAULT_DATASET  # its data loads on first use
+
             doc = parse_document(new_sheet_text(sheet_title(path), DEFAULT_DATASET, 4))
             return cls(path, doc, None)
         doc = read_document(path)

@@ -13,11 +13,10 @@ from textual.message import Message
 from textual.widgets import Static, TextArea
 
 from worksheet.app.widgets.calc_editor import CalcEditor
-from worksheet.app.widgets.histogram_chart import chart_class, chart_widget
-from worksheet.app.widgets.plot_chart import PlotChart
 from worksheet.app.widgets.result_lines import PlotPart, ResultLines, result_parts
 
-if TYPE_CHECKING:  # the engine loads after the first paint
+if TYPE_CHECKING:  # the engine and the charts load after the first paint
+    from worksheet.app.widgets.plot_chart import PlotChart
     from worksheet.engine import StatementResult
 
 
@@ -35,12 +34,17 @@ class CalcCellView(Vertical):
             self.index = index
             self.text = text
 
-    def __init__(self, index: int, text: str, first_line: int) -> None:
+    def __init__(
+        self, index: int, text: str, first_line: int, recorded: Iterable[str] = ()
+    ) -> None:
+        """``recorded``: the result lines the file holds, shown until a run replaces them."""
         super().__init__(classes="cell calc-cell")
         self.index = index
         self.first_line = first_line
         self._initial = text
-        self._results: list[ResultLines | PlotChart] = [ResultLines()]
+        lines = ResultLines()
+        lines.show_recorded(recorded)
+        self._results: list[ResultLines | PlotChart] = [lines]
 
     def compose(self) -> ComposeResult:
         yield Static(self._header(), classes="cell-header")
@@ -72,6 +76,9 @@ class CalcCellView(Vertical):
         the same (the usual case while typing); otherwise the ones after the first are
         replaced.
         """
+        from worksheet.app.widgets.histogram_chart import chart_class, chart_widget
+        from worksheet.app.widgets.plot_chart import PlotChart
+
         parts = result_parts(results)
         widgets = self._result_widgets()
         kinds = [
@@ -107,9 +114,6 @@ class CalcCellView(Vertical):
 
     def show_waiting(self, message: str) -> None:
         self._only_lines().show_waiting(message)
-
-    def show_recorded(self, lines: Iterable[str]) -> None:
-        self._only_lines().show_recorded(lines)
 
     def place(self, index: int, first_line: int) -> None:
         """Update where the cell sits after edits elsewhere in the sheet."""

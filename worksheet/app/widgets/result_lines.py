@@ -10,9 +10,8 @@ from rich.cells import cell_len
 from textual.content import Content
 from textual.widgets import Static
 
-from worksheet.app.chart_canvas import PlotLike
-
-if TYPE_CHECKING:  # the engine loads after the first paint
+if TYPE_CHECKING:  # the engine and the charts load after the first paint
+    from worksheet.app.chart_canvas import PlotLike
     from worksheet.engine import StatementResult
 
 # The word shown before each result, by status (colour comes from the theme on top).

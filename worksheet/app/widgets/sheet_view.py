@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
+from textual.app import ComposeResult
 from textual.containers import VerticalScroll
 from textual.widget import Widget
 
@@ -17,6 +18,18 @@ if TYPE_CHECKING:  # the engine loads after the first paint
     from worksheet.runner import SheetRun
 
 CellView = CalcCellView | NoteCellView
+
+
+def cell_views(doc: SheetDocument, source_notes: bool = False) -> list[CellView]:
+    """A view per block, each calc cell showing the results its file records."""
+    views: list[CellView] = []
+    for index, block in enumerate(doc.blocks):
+        if isinstance(block, CalcCell):
+            recorded = block.result.lines() if block.result is not None else ()
+            views.append(CalcCellView(index, editor_text(block.body), block.first_line, recorded))
+        else:
+            views.append(NoteCellView(index, block.text, source_first=source_notes))
+    return views
 
 
 class SheetView(VerticalScroll):
@@ -39,6 +52,18 @@ class SheetView(VerticalScroll):
             focused = parent if isinstance(parent, Widget) else None
         return None
 
+    def __init__(self, doc: SheetDocument | None = None, **kwargs: object) -> None:
+        """``doc``: the cells to compose at once (the first paint: notes as source text)."""
+        super().__init__(**kwargs)  # type: ignore[arg-type]
+        self._initial = doc
+
+    def compose(self) -> ComposeResult:
+        # Composed with the screen, the first cells are styled and laid out in the same
+        # pass as everything else, instead of in a second one after mounting.
+        if self._initial is not None:
+            yield from cell_views(self._initial, source_notes=True)
+            self._initial = None
+
     async def rebuild(self, doc: SheetDocument, source_notes: bool = False) -> None:
         """Replace every cell view by fresh ones for ``doc``.
 
@@ -46,16 +71,7 @@ class SheetView(VerticalScroll):
         paint of the app).
         """
         await self.remove_children()
-        views: list[CellView] = []
-        for index, block in enumerate(doc.blocks):
-            if isinstance(block, CalcCell):
-                views.append(CalcCellView(index, editor_text(block.body), block.first_line))
-            else:
-                views.append(NoteCellView(index, block.text, source_first=source_notes))
-        await self.mount_all(views)
-        for view, block in zip(views, doc.blocks, strict=True):
-            if isinstance(view, CalcCellView) and isinstance(block, CalcCell):
-                view.show_recorded(block.result.lines() if block.result is not None else ())
+        await self.mount_all(cell_views(doc, source_notes))
 
     async def render_notes(self) -> None:
         """Render the notes still showing their source text as Markdown."""
