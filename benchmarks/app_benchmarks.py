@@ -18,7 +18,6 @@ Run: python benchmarks/app_benchmarks.py
 from __future__ import annotations
 
 import asyncio
-import compileall
 import statistics
 import subprocess
 import sys
@@ -26,7 +25,7 @@ import tempfile
 import time
 from pathlib import Path
 
-from timing import verdict
+from timing import compile_package, verdict
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "sheets" / "burst-budget.sheet.md"
@@ -54,15 +53,6 @@ class Measured(WorksheetApp):
 
 Measured(sys.argv[1]).run(headless=True, size=({w}, {h}))
 """
-
-
-def compile_package() -> None:
-    """Write the package's bytecode, as an install does (the floor's textual has its own).
-
-    With PYTHONDONTWRITEBYTECODE set, or from a fresh clone, every launch would otherwise
-    compile the app's modules from source, which an installed app never does.
-    """
-    compileall.compile_dir(ROOT / "worksheet", quiet=1)
 
 
 def until_ready(command: list[str]) -> float:
