@@ -135,17 +135,23 @@ def test_issue12_tree_walk_matches_the_sympy_walk_on_sums(expression: str) -> No
     )
 
 
-def test_issue12_tree_walk_covers_the_hawking_temperature(monkeypatch) -> None:
-    """The plainest derivation line takes the walk and builds no sympy form until printed."""
-    calls = []
+def watch_walk(monkeypatch: pytest.MonkeyPatch) -> list[bool]:
+    """Whether each call of the walk covered its expression, in order."""
+    calls: list[bool] = []
     real = fast_numeric.walk_quantity
 
-    def counting(evaluator, node):
-        walked = real(evaluator, node)
-        calls.append(walked is not None)
-        return walked
+    def watching(evaluator, node):
+        result = real(evaluator, node)
+        calls.append(result is not None)
+        return result
 
-    monkeypatch.setattr(fast_numeric, "walk_quantity", counting)
+    monkeypatch.setattr(fast_numeric, "walk_quantity", watching)
+    return calls
+
+
+def test_issue12_tree_walk_covers_the_hawking_temperature(monkeypatch) -> None:
+    """The plainest derivation line takes the walk and builds no sympy form until printed."""
+    calls = watch_walk(monkeypatch)
     result = last_result("hbar*c^3/(8*pi*G*M*k_B)")
     assert calls[-1] is True
     assert isinstance(result.form, fast_numeric.LazyForm)
@@ -190,15 +196,7 @@ def test_issue12_a_sum_that_cancels_is_left_to_the_guard_of_the_sympy_path(monke
     the literal 0.3 exact: the walk's 50-digit check sees the disagreement and hands the
     line to the sympy path, which records the loss. A plain sum takes the walk."""
     lines = ["x = 0.1", "y = 0.2", "r = x + y - 0.3", "s = x + 2*x - y"]
-    walked = []
-    real = fast_numeric.walk_quantity
-
-    def watching(evaluator, node):
-        result = real(evaluator, node)
-        walked.append(result is not None)
-        return result
-
-    monkeypatch.setattr(fast_numeric, "walk_quantity", watching)
+    walked = watch_walk(monkeypatch)
     evaluator = SheetEvaluator(make_context())
     try:
         results = evaluator.run([SourceStatement(k + 1, text) for k, text in enumerate(lines)])
