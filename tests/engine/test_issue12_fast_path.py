@@ -9,7 +9,6 @@ from __future__ import annotations
 import importlib.util
 import json
 import random
-import sys
 from fractions import Fraction
 from pathlib import Path
 
@@ -118,7 +117,7 @@ def test_issue12_fast_path_is_taken_and_symbolic_is_lazy(tmp_path, capsys, monke
         calls.append(quantity is not None)
         return quantity
 
-    monkeypatch.setattr(sys.modules["worksheet.engine.statements"], "fast_quantity", counting)
+    monkeypatch.setattr(fast_numeric, "fast_quantity", counting)
     path = tmp_path / "plain.sheet.md"
     path.write_text("```calc\nx = 1.5 [m]\ncheck x > 1 [m]\n```\n", encoding="utf-8")
     run = cli._run_document(str(path))

@@ -15,7 +15,6 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from worksheet.engine import SheetEvaluator, SourceStatement, fast_numeric, make_context
-from worksheet.engine import statements as statements_module
 
 GIVENS = [
     "a = 1.7e3 [m] +- 2%",
@@ -60,7 +59,7 @@ def sympy_order_result(expression: str, monkeypatch: pytest.MonkeyPatch):
     """The same statement with the walk switched off: numbers from the sympy walk."""
     with monkeypatch.context() as patch:
         patch.setattr(fast_numeric, "ENABLED", False)
-        patch.setattr(statements_module, "walk_quantity", lambda evaluator, node: None)
+        patch.setattr(fast_numeric, "walk_quantity", lambda evaluator, node: None)
         return last_result(expression)
 
 

@@ -67,7 +67,8 @@ class _NotCovered(Exception):
 
 @dataclass(slots=True)
 class _Walked:
-    """One subtree's number: ``exact`` for a number written exactly (else None)."""
+    """One subtree's number: ``exact`` for a number written exactly (else None), and then
+    ``value`` is its double."""
 
     value: float
     dim: Dimension
@@ -93,7 +94,7 @@ def walk_quantity(evaluator: StatementEvaluator, node: t.Expr) -> WalkedQuantity
     precise = None
     try:
         walked = walker.walk(node)
-        value = float(walked.exact) if walked.exact is not None else walked.value
+        value = walked.value
         if not (math.isfinite(value) and abs(value) >= 2.3e-308):
             return None  # zero, inf and subnormal values: the precision guard looks at these
         if walker.has_sum and evaluator.ctx.guard:
@@ -113,12 +114,12 @@ def walk_quantity(evaluator: StatementEvaluator, node: t.Expr) -> WalkedQuantity
     )
 
 
-def fast_quantity(evaluator: StatementEvaluator, tr: Translator, node: t.Expr) -> Quantity | None:
-    """The quantity of ``node`` without building sympy, or None where sympy is needed."""
+def fast_quantity(
+    evaluator: StatementEvaluator, tr: Translator, node: t.Expr, walked: WalkedQuantity
+) -> Quantity | None:
+    """The quantity of ``node`` from its walk, its sympy form left to be built when printed
+    (None when the lazy path is switched off)."""
     if not ENABLED:
-        return None
-    walked = walk_quantity(evaluator, node)
-    if walked is None:
         return None
     from worksheet.engine.statements import Quantity
 
@@ -228,7 +229,7 @@ class _Walker:
                 raise _NotCovered
             exact = left.exact * right.exact if multiply else left.exact / right.exact
             return _Walked(_double(exact), dim, _bounded(exact))
-        a, b = _double_of(left), _double_of(right)
+        a, b = left.value, right.value
         if multiply:
             value = a * b
             grad = _combine((b, left.grad), (a, right.grad))
@@ -250,8 +251,8 @@ class _Walker:
             exact = left.exact + right.exact if sign > 0 else left.exact - right.exact
             return _Walked(_double(exact), left.dim, _bounded(exact))
         self.has_sum = True
-        right_terms = right.terms or [_double_of(right)]
-        terms = (left.terms or [_double_of(left)]) + [sign * term for term in right_terms]
+        right_terms = right.terms or [right.value]
+        terms = (left.terms or [left.value]) + [sign * term for term in right_terms]
         grad = _combine((1.0, left.grad), (sign, right.grad))
         return _Walked(math.fsum(terms), left.dim, None, grad, terms)
 
@@ -306,7 +307,7 @@ class _Walker:
                 raise _NotCovered
             exact = base.exact**power.numerator
             return _Walked(_double(exact), dim, _bounded(exact))
-        x = _double_of(base)
+        x = base.value
         if x == 0:
             raise _NotCovered
         if exponent is None:
@@ -344,12 +345,6 @@ def _double(value: Fraction) -> float:
     if value.denominator == 1:
         return float(value.numerator)
     return value.numerator / value.denominator
-
-
-def _double_of(walked: _Walked) -> float:
-    if walked.exact is not None:
-        return _double(walked.exact)
-    return walked.value
 
 
 def _bounded(exact: Fraction) -> Fraction:

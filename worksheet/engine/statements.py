@@ -9,11 +9,11 @@ from fractions import Fraction
 
 import sympy
 
+from worksheet.engine import fast_numeric
 from worksheet.engine import symbolic_ops as ops
 from worksheet.engine.bindings import Binding, Origin, symbol_for, unit_symbol
 from worksheet.engine.context import Context
 from worksheet.engine.estimate import Outcome, solve_exponents
-from worksheet.engine.fast_numeric import fast_quantity, walk_quantity
 from worksheet.engine.figures import (
     Figures,
     compute_figures,
@@ -229,8 +229,9 @@ class StatementEvaluator:
         (``fast_numeric``) on either path; ``fast`` also leaves its sympy form to be built
         when it is printed.
         """
-        if fast:
-            quick = fast_quantity(self, tr, node)
+        walked = fast_numeric.walk_quantity(self, node)  # once: both paths use its numbers
+        if fast and walked is not None:
+            quick = fast_numeric.fast_quantity(self, tr, node, walked)
             if quick is not None:
                 return quick
         lone = _lone_unit_value(node)
@@ -246,7 +247,6 @@ class StatementEvaluator:
                 typed = Typed(expr, resolved.dimension)
                 return Quantity(typed, self.figures(expr), resolved)
         typed = tr.translate(node)
-        walked = walk_quantity(self, node)
         if walked is not None:
             return Quantity(typed, walked.figures, resolved)
         return Quantity(typed, self.figures(typed.expr), resolved)
