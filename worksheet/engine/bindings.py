@@ -10,7 +10,7 @@ from typing import TYPE_CHECKING, Any
 
 import sympy
 
-from worksheet.engine.results import LazyForm
+from worksheet.engine.results import LazyForm, built
 from worksheet.units.dimension import Dimension
 
 if TYPE_CHECKING:
@@ -62,8 +62,7 @@ class Binding:
 
     def local_expr(self) -> sympy.Expr | None:
         """``local`` as a sympy expression (built now if the fast path left it lazy)."""
-        if isinstance(self.local, LazyForm):
-            self.local = self.local.expr()
+        self.local = built(self.local)
         return self.local
 
     def form(self) -> sympy.Expr:

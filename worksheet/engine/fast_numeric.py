@@ -41,6 +41,7 @@ from worksheet.engine.figures import (
     unit_g_power,
 )
 from worksheet.engine.results import LazyForm
+from worksheet.engine.sampling import is_ranged
 from worksheet.engine.translate import MAX_DIMENSION_POWER, Typed
 from worksheet.errors import WorksheetError
 from worksheet.syntax import tree as t
@@ -177,13 +178,11 @@ class _Walker:
 
     def lone(self, node: t.Expr) -> ResolvedUnit | None:
         """The unit of ``25 [degC]``, ``-3 [km]`` or ``[kg]``: a number with its unit."""
-        if isinstance(node, t.Neg):
-            node = node.operand
-        if isinstance(node, t.BinOp) and node.op == "*" and isinstance(node.left, t.Number):
-            node = node.right
-        if isinstance(node, t.Unit):
-            return self.evaluator.ctx.registry.resolve(node.unit, node.line, node.column)
-        return None
+        lone = t.lone_unit_value(node)
+        if lone is None:
+            return None
+        unit = lone[1]
+        return self.evaluator.ctx.registry.resolve(unit.unit, unit.line, unit.column)
 
     # --- leaves ---
     def _name(self, node: t.Name) -> _Walked:
@@ -204,7 +203,7 @@ class _Walker:
             binding.origin not in (Origin.GIVEN, Origin.DERIVED)
             or binding.spread is not None
             or evaluator.values.get(binding.symbol) is not binding
-            or _ranged(binding)
+            or is_ranged(binding)
         ):
             raise _NotCovered
         self.seen[node.id] = binding
@@ -364,9 +363,3 @@ def _combine(*parts: tuple[float, dict[str, float] | None]) -> dict[str, float] 
             for key, d in part.items():
                 grad[key] = grad.get(key, 0.0) + factor * d
     return grad
-
-
-def _ranged(binding: Binding) -> bool:
-    from worksheet.engine.sampling import is_ranged
-
-    return is_ranged(binding)

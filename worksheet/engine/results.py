@@ -23,6 +23,11 @@ class LazyForm:
         return self._expr
 
 
+def built(form: Any) -> Any:
+    """``form`` itself, or the expression of a ``LazyForm`` (built now if it is not yet)."""
+    return form.expr() if isinstance(form, LazyForm) else form
+
+
 @dataclass(frozen=True)
 class StatementResult:
     """The outcome of one statement, as recorded in the sheet and printed by ``--json``.
@@ -62,8 +67,7 @@ class StatementResult:
             return self.symbolic_text
         from worksheet.engine.formatting import format_expr
 
-        form = self.form.expr() if isinstance(self.form, LazyForm) else self.form
-        return format_expr(form)
+        return format_expr(built(self.form))
 
     def to_json(self) -> dict[str, Any]:
         data: dict[str, Any] = {}

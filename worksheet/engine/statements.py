@@ -234,7 +234,7 @@ class StatementEvaluator:
             quick = fast_numeric.fast_quantity(self, tr, node, walked)
             if quick is not None:
                 return quick
-        lone = _lone_unit_value(node)
+        lone = t.lone_unit_value(node)
         resolved = None
         if lone is not None:
             number, unit_node = lone
@@ -887,23 +887,6 @@ def _plainly_positive(expr: sympy.Expr) -> bool:
     if expr.is_Pow:
         return _plainly_positive(expr.args[0]) and bool(expr.args[1].is_Rational)
     return False
-
-
-def _lone_unit_value(node: t.Expr) -> tuple[Fraction, t.Unit] | None:
-    """``25 [degC]``, ``-3 [km]`` or ``[kg]``: a number written with its unit and nothing else."""
-    sign = 1
-    if isinstance(node, t.Neg):
-        sign, node = -1, node.operand
-    if isinstance(node, t.Unit):
-        return Fraction(sign), node
-    if (
-        isinstance(node, t.BinOp)
-        and node.op == "*"
-        and isinstance(node.left, t.Number)
-        and isinstance(node.right, t.Unit)
-    ):
-        return node.left.value * sign, node.right
-    return None
 
 
 def _precise_number(figures: Figures, offset: float, factor: float, digits: int) -> str | None:

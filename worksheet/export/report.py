@@ -16,7 +16,7 @@ from worksheet.constants import Dataset, load_dataset
 from worksheet.document import CalcCell, NoteBlock
 from worksheet.engine import SourceStatement, StatementResult
 from worksheet.engine.formatting import format_number, format_uncertainty
-from worksheet.engine.results import LazyForm
+from worksheet.engine.results import built
 from worksheet.engine.translate import VERBS  # a step using one shows its symbolic form
 from worksheet.errors import WorksheetError
 from worksheet.runner import SheetRun
@@ -278,8 +278,7 @@ def constants_used(steps: list[Step], dataset: Dataset) -> tuple[ConstantRow, ..
 
 def _evaluated_constants(result: StatementResult, dataset: Dataset) -> list[str]:
     """Constant symbols of the expression the engine evaluated, by name (sorted: a set)."""
-    form = result.form.expr() if isinstance(result.form, LazyForm) else result.form
-    symbols = getattr(form, "free_symbols", ())
+    symbols = getattr(built(result.form), "free_symbols", ())
     return sorted(
         symbol.name
         for symbol in symbols

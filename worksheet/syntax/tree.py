@@ -254,3 +254,20 @@ def walk(node: Expr):
             stack.extend((current.exponent, current.base))
         elif isinstance(current, Call):
             stack.extend(reversed(current.args))
+
+
+def lone_unit_value(node: Expr) -> tuple[Fraction, Unit] | None:
+    """``25 [degC]``, ``-3 [km]`` or ``[kg]``: a number written with its unit and nothing else."""
+    sign = 1
+    if isinstance(node, Neg):
+        sign, node = -1, node.operand
+    if isinstance(node, Unit):
+        return Fraction(sign), node
+    if (
+        isinstance(node, BinOp)
+        and node.op == "*"
+        and isinstance(node.left, Number)
+        and isinstance(node.right, Unit)
+    ):
+        return node.left.value * sign, node.right
+    return None

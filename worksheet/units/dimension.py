@@ -103,7 +103,7 @@ class Dimension:
             if named:
                 cached = named
             else:
-                units = compose_base_units(self.exponents)
+                units = self.base_units()
                 cached = (f"dimension {units}", units)
             object.__setattr__(self, "_words_cache", cached)
         return cached
