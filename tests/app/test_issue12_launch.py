@@ -75,12 +75,18 @@ def test_issue12_recorded_lines_are_on_screen_before_the_engine_runs(tmp_path: P
 
 
 # Import what the app needs for its first paint and list the heavy modules then loaded.
-IMPORTS = """
+def loaded_after_first_paint_imports(modules: tuple[str, ...]) -> str:
+    """A program that imports the first paint's modules and prints which of ``modules``
+    they loaded."""
+    return f"""
 import sys
 import worksheet.app.app, worksheet.app.session, worksheet.document
 import worksheet.app.widgets.sheet_view, worksheet.app.widgets.calc_cell
-print(sorted(m for m in ("sympy", "numpy", "pint", "worksheet.engine") if m in sys.modules))
+print(sorted(m for m in {modules!r} if m in sys.modules))
 """
+
+
+IMPORTS = loaded_after_first_paint_imports(("sympy", "numpy", "pint", "worksheet.engine"))
 
 
 def test_issue12_first_paint_modules_do_not_import_sympy() -> None:
@@ -94,7 +100,7 @@ def test_issue12_first_paint_modules_do_not_import_sympy() -> None:
 # Modules only a later step needs: the dataset (the constants finder, a new sheet's
 # front matter), the chart widgets (a run's plots), rendered Markdown (after the paint).
 LATER = ("worksheet.constants", "worksheet.app.chart_canvas", "textual.widgets._markdown")
-LATER_IMPORTS = IMPORTS.replace('("sympy", "numpy", "pint", "worksheet.engine")', repr(LATER))
+LATER_IMPORTS = loaded_after_first_paint_imports(LATER)
 
 
 def test_issue12_first_paint_modules_leave_later_steps_unloaded() -> None:
