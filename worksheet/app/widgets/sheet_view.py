@@ -64,14 +64,11 @@ class SheetView(VerticalScroll):
             yield from cell_views(self._initial, source_notes=True)
             self._initial = None
 
-    async def rebuild(self, doc: SheetDocument, source_notes: bool = False) -> None:
-        """Replace every cell view by fresh ones for ``doc``.
-
-        ``source_notes``: notes show their source text until ``render_notes`` (the first
-        paint of the app).
-        """
+    async def rebuild(self, doc: SheetDocument) -> None:
+        """Replace every cell view by fresh ones for ``doc`` (notes rendered at once; only
+        the first paint, composed from ``__init__``'s document, shows their source)."""
         await self.remove_children()
-        await self.mount_all(cell_views(doc, source_notes))
+        await self.mount_all(cell_views(doc))
 
     async def render_notes(self) -> None:
         """Render the notes still showing their source text as Markdown."""
