@@ -11,10 +11,12 @@ from __future__ import annotations
 import math
 
 import pytest
+import sympy
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from worksheet.engine import SheetEvaluator, SourceStatement, fast_numeric, make_context
+from worksheet.engine.results import built
 
 GIVENS = [
     "a = 1.7e3 [m] +- 2%",
@@ -163,7 +165,7 @@ def test_issue12_tree_walk_covers_the_hawking_temperature(monkeypatch) -> None:
     assert math.isclose(result.si_value, expected, rel_tol=1e-12)
 
 
-def test_issue12_lazy_form_uses_the_bindings_the_line_saw() -> None:
+def test_issue12_lazy_form_survives_an_edit_that_removes_its_name() -> None:
     """A result keeps its own form after an edit removes the name it read (the app prints
     forms of results it holds, after later runs)."""
     evaluator = SheetEvaluator(make_context())
@@ -175,6 +177,23 @@ def test_issue12_lazy_form_uses_the_bindings_the_line_saw() -> None:
     assert second[1].status == "error"
     assert isinstance(first[1].form, fast_numeric.LazyForm)
     assert first[1].si_value == 6.0 and first[1].symbolic == "3*x"
+
+
+def test_issue12_lazy_form_reads_the_bindings_the_line_saw() -> None:
+    """An incremental run rebinds x in place (same name, new value); the earlier result's
+    form, printed afterwards, still means the x it was computed from, whose sign made
+    its symbol positive."""
+    evaluator = SheetEvaluator(make_context())
+    try:
+        first = evaluator.run([SourceStatement(1, "x = 2 [m]"), SourceStatement(2, "y = x*3")])
+        second = evaluator.run([SourceStatement(1, "x = -5 [m]"), SourceStatement(2, "y = x*3")])
+    finally:
+        evaluator.ctx.worker.close()
+    assert second[1].si_value == -15.0
+    assert isinstance(first[1].form, fast_numeric.LazyForm)
+    symbols = built(first[1].form).free_symbols
+    assert sympy.Symbol("x", positive=True) in symbols
+    assert sympy.Symbol("x", negative=True) not in symbols
 
 
 def test_issue12_many_edits_keep_the_parse_cache_bounded() -> None:
