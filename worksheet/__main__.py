@@ -1,5 +1,5 @@
 """Run the command line: ``python -m worksheet``."""
 
-from worksheet.cli import main
+from worksheet.cli import entry
 
-raise SystemExit(main())
+entry()

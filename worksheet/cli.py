@@ -154,6 +154,48 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 130
 
 
+def entry() -> None:
+    """The console command: :func:`main`, then an exit that skips the interpreter's teardown.
+
+    Once the output is flushed and every file is closed, unwinding the modules of sympy
+    and numpy object by object takes a tenth of a second or more and does nothing for the
+    user, so the process ends at once. ``WORKSHEET_FULL_EXIT=1`` keeps the normal exit (for
+    tools that work at exit, such as coverage); so does a thread still running.
+    """
+    try:
+        code = main()
+    except SystemExit as stop:  # raised by argparse (--help, --version)
+        code = _exit_status(stop.code)
+    if os.environ.get("WORKSHEET_FULL_EXIT") or _threads_still_running():
+        raise SystemExit(code)
+    try:
+        sys.stdout.flush()
+        sys.stderr.flush()
+    except (OSError, ValueError):  # a closed pipe: the normal exit words it as it always has
+        raise SystemExit(code) from None
+    os._exit(code)
+
+
+def _exit_status(code: object) -> int:
+    """What ``SystemExit(code)`` would make the process return."""
+    if code is None:
+        return 0
+    if isinstance(code, int):
+        return code
+    print(code, file=sys.stderr)
+    return 1
+
+
+def _threads_still_running() -> bool:
+    """Whether a thread the normal exit would wait for is still running."""
+    import threading
+
+    return any(
+        thread.is_alive() and not thread.daemon and thread is not threading.main_thread()
+        for thread in threading.enumerate()
+    )
+
+
 # --- commands ---------------------------------------------------------------------------
 
 
@@ -181,11 +223,12 @@ def _run_document(
     budget: float | None = None,
     dataset: str | None = None,
     lines_as_written: bool = False,
+    worker=None,
 ):
     from worksheet.runner import SheetRunner
 
     doc = _read(path_text)
-    runner = SheetRunner(path_text, budget=budget, dataset=dataset)
+    runner = SheetRunner(path_text, budget=budget, dataset=dataset, worker=worker)
     try:
         return runner.run(doc, lines_as_written)
     except WorksheetError as err:
@@ -245,10 +288,21 @@ def _run(args: argparse.Namespace) -> int:
 
 
 def _check(args: argparse.Namespace) -> int:
+    from worksheet.engine.budget import Worker
+
+    # One worker process for every file: each sheet's verbs find it started, and warm.
+    worker = Worker()
+    try:
+        return _check_each(args, worker)
+    finally:
+        worker.close()
+
+
+def _check_each(args: argparse.Namespace, worker) -> int:
     worst = 0
     for path_text in args.files:
         try:
-            run = _run_document(path_text, args.budget)
+            run = _run_document(path_text, args.budget, worker=worker)
         except UsageError as err:
             if args.json:
                 print(
@@ -437,8 +491,14 @@ def _compare(args: argparse.Namespace) -> int:
         _known_dataset(args.constants)
     if args.new is None and args.constants is None:
         raise UsageError("compare needs a second sheet or --constants DATASET")
-    old = _run_document(args.old, args.budget)
-    new = _run_document(args.new or args.old, args.budget, args.constants)
+    from worksheet.engine.budget import Worker
+
+    worker = Worker()  # both runs' verbs in one process
+    try:
+        old = _run_document(args.old, args.budget, worker=worker)
+        new = _run_document(args.new or args.old, args.budget, args.constants, worker=worker)
+    finally:
+        worker.close()
     old_name = f"{args.old} ({old.settings.dataset})"
     new_name = f"{args.new or args.old} ({new.settings.dataset})"
     rows = compare_results(old.results, new.results, tolerance, old.settings.digits)

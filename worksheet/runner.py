@@ -32,7 +32,7 @@ from worksheet.engine import (
     make_context,
     split_statements,
 )
-from worksheet.engine.budget import DEFAULT_SECONDS
+from worksheet.engine.budget import DEFAULT_SECONDS, Worker
 from worksheet.engine.distributions import (
     DEFAULT_SAMPLES,
     DEFAULT_SEED,
@@ -296,12 +296,14 @@ class SheetRunner:
         *,
         budget: float | None = None,
         dataset: str | None = None,
+        worker: Worker | None = None,
     ) -> None:
         from worksheet.imports import SheetImports
 
         self.sheet_path = sheet_path
         self.budget = budget
         self.dataset = dataset
+        self._worker = worker  # lent by the caller, who closes it; None: one per context
         self._imports = SheetImports()
         self._contexts: dict[tuple, Context] = {}
         self._evaluators: dict[tuple, SheetEvaluator] = {}
@@ -330,6 +332,8 @@ class SheetRunner:
         )
         if key not in self._evaluators:
             context = make_context(*key)  # the key is make_context's arguments, in order
+            if self._worker is not None:
+                context.worker = self._worker
             self._contexts[key] = context
             self._evaluators[key] = SheetEvaluator(context)
         return self._evaluators[key]
@@ -512,8 +516,10 @@ class SheetRunner:
         return per_cell, lines_of
 
     def close(self) -> None:
+        """Stop the workers this runner started (a lent one stays with its owner)."""
         for context in self._contexts.values():
-            context.worker.close()
+            if context.worker is not self._worker:
+                context.worker.close()
 
 
 def _same_lines(a: Sequence[SourceStatement], b: Sequence[SourceStatement]) -> bool:
