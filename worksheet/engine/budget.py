@@ -25,7 +25,7 @@ import signal
 import sys
 import threading
 import time
-from collections.abc import Callable, Iterator
+from collections.abc import Callable
 from typing import Any
 
 from worksheet.errors import BudgetError, EvaluationError, WorksheetError
@@ -350,45 +350,82 @@ class Worker:
             self._stop()
 
 
-@contextlib.contextmanager
-def statement_timer(seconds: float) -> Iterator[None]:
+_MAIN_THREAD_ID = threading.main_thread().ident
+_CAN_INTERRUPT = hasattr(signal, "setitimer")
+try:  # signal.getsignal wraps the answer in an enum, which costs microseconds per call
+    from _signal import getsignal as _current_handler
+except ImportError:  # another Python than CPython
+    _current_handler = signal.getsignal
+
+
+class _Alarm:
+    """The interval timer's state, shared by every statement of the main thread.
+
+    The handler stays installed between statements (installing one is a system call, and a
+    sheet runs thousands of statements); while no statement is timed it hands an alarm on
+    to the handler it replaced, so a timer of someone else's is not swallowed.
+    """
+
+    seconds: float | None = None  # the budget of the statement being timed, else None
+    replaced: Any = None  # the handler before ours
+
+
+def _on_alarm(signum: int, frame: Any) -> None:
+    seconds = _Alarm.seconds
+    if seconds is not None:
+        raise BudgetError(
+            f"the statement ran past its time budget of {seconds:g} s and was stopped "
+            f"{_RAISE_HINT}"
+        )
+    replaced = _Alarm.replaced
+    if callable(replaced):
+        replaced(signum, frame)
+
+
+class statement_timer:
     """One budget of ``seconds`` for a whole statement.
 
     Verbs called inside share what is left of it (in any thread). In the main thread an
-    interval timer also interrupts pure-Python work when it runs out.
+    interval timer also interrupts pure-Python work when it runs out; a statement timed
+    inside another leaves the outer one's timer running.
     """
-    previous_deadline = getattr(_deadline, "at", None), getattr(_deadline, "seconds", None)
-    if seconds > 0:
-        _deadline.at, _deadline.seconds = time.monotonic() + seconds, seconds
-    try:
-        if (
-            threading.current_thread() is not threading.main_thread()
-            or not hasattr(signal, "setitimer")
-            or seconds <= 0
-        ):
-            yield
+
+    __slots__ = ("_armed", "_previous", "seconds")
+
+    def __init__(self, seconds: float) -> None:
+        self.seconds = seconds
+        self._previous: tuple[Any, Any] = (None, None)
+        self._armed = False
+
+    def __enter__(self) -> None:
+        seconds = self.seconds
+        local = _deadline.__dict__
+        self._previous = local.get("at"), local.get("seconds")
+        if seconds <= 0:
             return
-
-        armed = [True]
-
-        def expire(signum: int, frame: Any) -> None:
-            if armed[0]:
-                raise BudgetError(
-                    f"the statement ran past its time budget of {seconds:g} s and was stopped "
-                    f"{_RAISE_HINT}"
-                )
-
-        previous = signal.signal(signal.SIGALRM, expire)
+        local["at"], local["seconds"] = time.monotonic() + seconds, seconds
+        if (
+            not _CAN_INTERRUPT
+            or _Alarm.seconds is not None
+            or threading.get_ident() != _MAIN_THREAD_ID
+        ):
+            return
+        if _current_handler(signal.SIGALRM) is not _on_alarm:
+            _Alarm.replaced = signal.signal(signal.SIGALRM, _on_alarm)
+        _Alarm.seconds = seconds
+        self._armed = True
         # The timer repeats: an exception raised inside a garbage-collector callback or a
         # __del__ is swallowed by Python, and one swallowed alarm must not free the statement.
         signal.setitimer(signal.ITIMER_REAL, seconds + TIMER_GRACE_SECONDS, TIMER_REPEAT_SECONDS)
+
+    def __exit__(self, *exc: object) -> None:
         try:
-            yield
+            if self._armed:
+                try:
+                    _Alarm.seconds = None
+                finally:  # reached even when an alarm lands on the line above
+                    self._armed = False
+                    signal.setitimer(signal.ITIMER_REAL, 0)
         finally:
-            try:
-                armed[0] = False
-            finally:  # reached even when an alarm lands on the line above
-                signal.setitimer(signal.ITIMER_REAL, 0)
-                signal.signal(signal.SIGALRM, previous)
-    finally:
-        _deadline.at, _deadline.seconds = previous_deadline
+            local = _deadline.__dict__
+            local["at"], local["seconds"] = self._previous
