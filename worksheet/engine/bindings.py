@@ -55,6 +55,9 @@ class Binding:
     _resolver: Callable[[str], Binding | None] | None = field(default=None, repr=False)
     serial: int = field(default_factory=lambda: next(_SERIALS), repr=False)
     """Distinguishes successive bindings of one name, for the re-run cache."""
+    _memo: dict[str, Any] = field(default_factory=dict, repr=False)
+    """Facts worked out once from the binding and its inputs (whether it is sampled, a
+    constant's partials): kept on it, as a weak mapping by binding would be, only quicker."""
 
     @property
     def has_value(self) -> bool:

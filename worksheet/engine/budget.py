@@ -374,8 +374,7 @@ def _on_alarm(signum: int, frame: Any) -> None:
     seconds = _Alarm.seconds
     if seconds is not None:
         raise BudgetError(
-            f"the statement ran past its time budget of {seconds:g} s and was stopped "
-            f"{_RAISE_HINT}"
+            f"the statement ran past its time budget of {seconds:g} s and was stopped {_RAISE_HINT}"
         )
     replaced = _Alarm.replaced
     if callable(replaced):

@@ -24,7 +24,6 @@ zero, infinite or subnormal.
 from __future__ import annotations
 
 import math
-import weakref
 from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
@@ -194,10 +193,10 @@ class _Walker:
             raise _NotCovered
         if binding.origin is Origin.CONSTANT:
             self.seen[node.id] = binding
-            seed = _CONSTANT_SEEDS.get(binding, _UNSEEN)
+            memo = binding._memo
+            seed = memo.get("seed", _UNSEEN)
             if seed is _UNSEEN:
-                seed = _constant_seed(node.id, binding, evaluator)
-                _CONSTANT_SEEDS[binding] = seed
+                seed = memo["seed"] = _constant_seed(node.id, binding, evaluator)
             return _Walked(binding.value, binding.dimension, None, dict(seed) if seed else None)
         if (
             binding.origin not in (Origin.GIVEN, Origin.DERIVED)
@@ -321,11 +320,9 @@ class _Walker:
         return _Walked(value, dim, None, grad)
 
 
-_CONSTANT_SEEDS: weakref.WeakKeyDictionary[Binding, dict[str, float] | None] = (
-    weakref.WeakKeyDictionary()
-)
-"""A dataset constant's partials (its own, or G's): the same for every line that reads it."""
 _UNSEEN = object()
+"""Not in a binding's memo yet; its "seed" is a dataset constant's partials (its own, or
+G's), the same for every line that reads it."""
 
 
 def _constant_seed(

@@ -116,6 +116,10 @@ PLANCK_G_POWERS = {
 (CODATA's definitions): with hbar, c, k_B exact, their uncertainty is all G's."""
 
 
+_NONE = Fraction(0)
+_MINUS_ONE = Fraction(-1)
+
+
 def name_g_power(name: str, ctx: Context) -> Fraction:
     """The power of G in a constant's (or a dataset unit's) value.
 
@@ -124,8 +128,8 @@ def name_g_power(name: str, ctx: Context) -> Fraction:
     The Planck units go as G^(+-1/2) (``PLANCK_G_POWERS``).
     """
     if name.startswith("M_") and f"GM_{name[2:]}" in ctx.constants:
-        return Fraction(-1)
-    return PLANCK_G_POWERS.get(name, Fraction(0))
+        return _MINUS_ONE
+    return PLANCK_G_POWERS.get(name, _NONE)
 
 
 def _g_seed(power: Fraction, value: float, ctx: Context) -> dict[str, float]:
@@ -319,10 +323,12 @@ def relative_uncertainty_note(value: float, uncertainty: float | None) -> str | 
 def unit_g_power(unit: str, ctx: Context) -> Fraction:
     """The power of G in a unit's SI factor: [M_sun] = GM_sun/G goes as G^-1, and
     [M_sun/yr] too; [pc] as G^0."""
-    return sum(
-        (power * name_g_power(name, ctx) for name, power in _unit_factors(unit)),
-        start=Fraction(0),
-    )
+    total = _NONE
+    for name, power in _unit_factors(unit):
+        g_power = name_g_power(name, ctx)
+        if g_power:
+            total += power * g_power
+    return total
 
 
 @functools.lru_cache(maxsize=4096)

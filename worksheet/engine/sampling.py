@@ -37,8 +37,6 @@ if TYPE_CHECKING:
     from worksheet.engine.statements import Quantity, StatementEvaluator
 
 _SAMPLES: weakref.WeakKeyDictionary[Binding, Any] = weakref.WeakKeyDictionary()
-_RANGED: weakref.WeakKeyDictionary[Binding, bool] = weakref.WeakKeyDictionary()
-_RANDOM: weakref.WeakKeyDictionary[Binding, bool] = weakref.WeakKeyDictionary()
 _STATED: weakref.WeakKeyDictionary[Binding, str] = weakref.WeakKeyDictionary()
 """A ranged given's distribution in the words and unit of its own record."""
 
@@ -76,10 +74,10 @@ def is_ranged(binding: Binding) -> bool:
         return True
     if binding.input_uncertainty:
         return False  # a stated '+-' makes it an independent normal input
-    cached = _RANGED.get(binding)
+    memo = binding._memo
+    cached = memo.get("ranged")
     if cached is None:
-        cached = any(is_ranged(dep) for dep in _deps(binding))
-        _RANGED[binding] = cached
+        cached = memo["ranged"] = any(is_ranged(dep) for dep in _deps(binding))
     return cached
 
 
@@ -87,10 +85,10 @@ def is_random(binding: Binding) -> bool:
     """Whether the binding varies from sample to sample (ranged, or a ``+-`` among its inputs)."""
     if _is_independent(binding):
         return True
-    cached = _RANDOM.get(binding)
+    memo = binding._memo
+    cached = memo.get("random")
     if cached is None:
-        cached = any(is_random(dep) for dep in _deps(binding))
-        _RANDOM[binding] = cached
+        cached = memo["random"] = any(is_random(dep) for dep in _deps(binding))
     return cached
 
 

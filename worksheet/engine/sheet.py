@@ -306,18 +306,19 @@ class SheetEvaluator:
                 return None
             if source.text != slot.source.text:
                 changed.append(index)
+        fresh: list[_Slot] = []
         for index in changed:
             parsed, defines, uses = self._parse(statements[index])
             if defines != slots[index].defines:
                 return None
-            fresh = _Slot(statements[index], parsed, defines, uses)
-            if self._claims_name(fresh) != self._claims_name(slots[index]):
+            slot = _Slot(statements[index], parsed, defines, uses)
+            if defines is not None and self._claims_name(slot) != self._claims_name(slots[index]):
                 return None  # G = 5 became G : [...]: the name's owner changes
+            fresh.append(slot)
         for index in others:  # same text, line and cell, or changed: keep the new object
             slots[index].source = statements[index]
-        for index in changed:
-            parsed, defines, uses = self._parse(statements[index])
-            slots[index] = _Slot(statements[index], parsed, defines, uses)
+        for index, slot in zip(changed, fresh, strict=True):
+            slots[index] = slot
         if len(self._parse_cache) > 4 * len(slots) + 1000:  # an app session's many edits
             self._parse_cache = {
                 (slot.source.line, slot.source.text): self._parse(slot.source) for slot in slots
@@ -389,7 +390,7 @@ class SheetEvaluator:
                 line, "error", slot.source.text.strip(), "error", message=message, record=message
             ), None
         key = (
-            tuple((name, _serial(visible.get(name)), name in failed) for name in slot.uses),
+            tuple([(name, _serial(visible.get(name)), name in failed) for name in slot.uses]),
             self.ctx.digits,
         )
         if slot.key == key and slot.result is not None:
@@ -397,10 +398,12 @@ class SheetEvaluator:
         slot.key = key
         if isinstance(parsed, t.Use):
             return self._imports.results[line], None
-        for name in (slot.defines, *slot.uses):
-            refusal = name and self._imports.refusal(name, line, name == slot.defines)
-            if refusal:
-                return evaluator.error_result(parsed, NameResolutionError(refusal, line)), None
+        if self._imports.names:  # names another sheet lends: this line may not take them
+            for name in (slot.defines, *slot.uses):
+                refusal = name and self._imports.refusal(name, line, name == slot.defines)
+                if refusal:
+                    error = NameResolutionError(refusal, line)
+                    return evaluator.error_result(parsed, error), None
         # Names: redefinition, use before definition, dependence on a failed line.
         if slot.defines is not None and first_definer.get(slot.defines, index) != index:
             first_line = slots[first_definer[slot.defines]].source.line

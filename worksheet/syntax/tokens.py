@@ -75,6 +75,19 @@ _PLAIN = re.compile(
 """The plain ASCII tokens, read by one regular expression. Anything else (a newline, a
 comment, a bracketed unit, a non-ASCII letter or alias, every error) is read by the
 character loop below, which the expression must agree with token for token."""
+_LINE_TOKEN = re.compile(
+    r"[ \t\r]*(?:"
+    r"(?P<number>(?:[0-9]+(?:\.(?!\.)[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?)"
+    r"|(?P<name>[A-Za-z_][A-Za-z0-9_]*)"
+    r"|(?P<op>\*\*|==|<=|>=|\+-|\.\.|[-+*/^(),=<>~:%])"
+    r"|\[(?P<unit>[^\[\]]*)\]"
+    r"|(?P<comment>#.*)"
+    r")"
+)
+"""One token of a one-line ASCII statement with the blanks before it: the whole line is
+read by this expression when its matches cover it end to end. A gap (a character no token
+takes, an unclosed bracket) or a number running into a name leaves the line to the readers
+below, which raise the error with its column."""
 _ASCII_NAME_PART = frozenset("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789_")
 
 
@@ -123,6 +136,49 @@ def _scan_number(text: str, start: int) -> int:
     return i
 
 
+def _tokenize_ascii_line(text: str, line: int, column: int) -> list[Token] | None:
+    """The tokens of a one-line ASCII statement, or None where the slower readers must look."""
+    tokens: list[Token] = []
+    append = tokens.append
+    new = tuple.__new__  # Token(...) less its Python-level __new__: a line has dozens
+    position = 0
+    for found in _LINE_TOKEN.finditer(text):
+        start, end = found.span()
+        if start != position:
+            return None
+        position = end
+        group = found.lastindex
+        first, last = found.span(group)
+        if group == 3:  # an operator
+            operator = text[first:last]
+            if operator == "%":
+                append(new(Token, (_PERCENT, operator, line, first + column)))
+            else:
+                canonical = "^" if operator == "**" else operator
+                append(new(Token, (_OPERATOR, canonical, line, first + column)))
+        elif group < 3:  # a number or a name
+            if last < len(text) and text[last] in _ASCII_NAME_PART:
+                return None  # '5e' or '3kg': the character loop says what is wrong
+            kind = _NUMBER if group == 1 else _NAME
+            append(new(Token, (kind, text[first:last], line, first + column)))
+        elif group == 4:  # the text inside a unit's brackets
+            append(new(Token, (_UNIT, text[first:last].strip(), line, first - 1 + column)))
+    if position != len(text) and text[position:].strip(" \t\r"):
+        return None
+    append(new(Token, (_END, "", line, len(text) + column)))
+    return tokens
+
+
+_NUMBER, _NAME, _OPERATOR, _UNIT, _PERCENT, _END = (
+    Kind.NUMBER,
+    Kind.NAME,
+    Kind.OP,
+    Kind.UNIT,
+    Kind.PERCENT,
+    Kind.END,
+)
+
+
 def tokenize(text: str, line: int = 1, column: int = 1, plain: bool = True) -> list[Token]:
     """Split one statement into tokens; ``#`` starts a comment.
 
@@ -138,6 +194,10 @@ def tokenize(text: str, line: int = 1, column: int = 1, plain: bool = True) -> l
             line,
             column,
         )
+    if plain and text.isascii() and "\n" not in text:
+        whole = _tokenize_ascii_line(text, line, column)
+        if whole is not None:
+            return whole
     tokens: list[Token] = []
     i = 0
     n = len(text)

@@ -41,12 +41,21 @@ class Dimension:
             object.__setattr__(self, "_hash", cached)
         return cached
 
+    def __eq__(self, other: object) -> bool:
+        # Results of arithmetic are one object per exponent vector (``_canonical``), so
+        # the usual comparison is by identity; comparing seven Fractions costs microseconds.
+        if self is other:
+            return True
+        if not isinstance(other, Dimension):
+            return NotImplemented
+        return hash(self) == hash(other) and self.exponents == other.exponents
+
     def _remembered(self, key: tuple[object, ...], exponents: Callable[[], tuple]) -> Dimension:
         found = _DONE.get(key)
         if found is None:
             if len(_DONE) >= _DONE_LIMIT:
                 _DONE.clear()
-            found = _DONE[key] = Dimension(exponents())
+            found = _DONE[key] = _canonical(exponents())
         return found
 
     @classmethod
@@ -118,6 +127,19 @@ class Dimension:
 
     def __str__(self) -> str:
         return self.name()
+
+
+_CANONICAL: dict[tuple[Fraction, ...], Dimension] = {}
+
+
+def _canonical(exponents: tuple[Fraction, ...]) -> Dimension:
+    """The one instance of a dimension that arithmetic hands out."""
+    found = _CANONICAL.get(exponents)
+    if found is None:
+        if len(_CANONICAL) >= _DONE_LIMIT:
+            _CANONICAL.clear()
+        found = _CANONICAL[exponents] = Dimension(exponents)
+    return found
 
 
 def _power_text(symbol: str, power: Fraction) -> str:
