@@ -317,7 +317,12 @@ class SheetEvaluator:
             fresh.append(slot)
         for index in others:  # same text, line and cell, or changed: keep the new object
             slots[index].source = statements[index]
+        cache = self._parse_cache
         for index, slot in zip(changed, fresh, strict=True):
+            # The text it replaces is forgotten with it: parses kept for texts no longer in
+            # the sheet outlive a few collections and make the collector rescan them all.
+            old = slots[index].source
+            cache.pop((old.line, old.text), None)
             slots[index] = slot
         if len(self._parse_cache) > 4 * len(slots) + 1000:  # an app session's many edits
             self._parse_cache = {

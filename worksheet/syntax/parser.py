@@ -98,7 +98,7 @@ class _Parser:
             while (op := tokens[self.index]).kind is _OP and op.text in _ADDITIVE:
                 self.index += 1
                 right = self.term()
-                node = t.BinOp(op.text, node, right, line=op.line, column=op.column)
+                node = t.binop(op.text, node, right, op.line, op.column)
             return node
         finally:
             self.depth -= 1
@@ -109,7 +109,7 @@ class _Parser:
         while (op := tokens[self.index]).kind is _OP and op.text in _MULTIPLICATIVE:
             self.index += 1
             right = self.unary()
-            node = t.BinOp(op.text, node, right, line=op.line, column=op.column)
+            node = t.binop(op.text, node, right, op.line, op.column)
         return node
 
     def unary(self) -> t.Expr:
@@ -140,7 +140,7 @@ class _Parser:
                 exponent = self.unary()  # right-associative, allows 2^-1
             finally:
                 self.depth -= 1
-            return t.Power(base, exponent, line=op.line, column=op.column)
+            return t.power(base, exponent, op.line, op.column)
         return base
 
     def postfix(self) -> t.Expr:
@@ -156,8 +156,8 @@ class _Parser:
                 )
             unit_token = self.peek()
             unit, _ = self.expect_unit()
-            unit_node = t.Unit(unit, line=unit_token.line, column=unit_token.column)
-            node = t.BinOp("*", node, unit_node, line=unit_token.line, column=unit_token.column)
+            unit_node = t.unit(unit, unit_token.line, unit_token.column)
+            node = t.binop("*", node, unit_node, unit_token.line, unit_token.column)
             if self.at("^"):
                 raise self.error(
                     f"unit powers go inside the brackets: write [({unit.source})^2] "
@@ -174,14 +174,14 @@ class _Parser:
             return number_node(token)
         if token.kind is Kind.UNIT:
             unit, _ = self.expect_unit()
-            return t.Unit(unit, line=token.line, column=token.column)
+            return t.unit(unit, token.line, token.column)
         if token.kind is Kind.NAME:
             check_name(token)
             self.index += 1
             following = self.tokens[self.index]
             if following.kind is _OP and following.text == "(":
                 return self.call(token)
-            return t.Name(token.text, line=token.line, column=token.column)
+            return t.name(token.text, token.line, token.column)
         if self.at("("):
             self.take()
             self.enter()
@@ -311,7 +311,7 @@ def number_node(token: Token) -> t.Number:
     if len(mantissa.replace(".", "")) > 60:
         raise ParseError(f"number {literal[:20]}... has too many digits", token.line, token.column)
     value = Fraction(int(literal)) if literal.isdigit() else Fraction(literal)
-    return t.Number(value, literal, line=token.line, column=token.column)
+    return t.number(value, literal, token.line, token.column)
 
 
 def check_name(token: Token) -> None:

@@ -74,6 +74,45 @@ class Equation(Node):
 Expr = Number | Name | Unit | BinOp | Neg | Power | Call | Equation
 
 
+# --- quick constructors ---------------------------------------------------------------------
+# A frozen dataclass's __init__ sets each field through object.__setattr__, about a
+# microsecond a node; a line has a dozen or more nodes. The parser builds its nodes with
+# these instead, which fill the same fields (defaults included) into a fresh instance:
+# the nodes are equal, hash alike and stay frozen.
+
+_new = object.__new__
+
+
+def binop(op: str, left: Expr, right: Expr, line: int, column: int) -> BinOp:
+    node = _new(BinOp)
+    node.__dict__.update(op=op, left=left, right=right, line=line, column=column, text="")
+    return node
+
+
+def name(id: str, line: int, column: int) -> Name:
+    node = _new(Name)
+    node.__dict__.update(id=id, line=line, column=column, text="")
+    return node
+
+
+def number(value: Fraction, literal: str, line: int, column: int) -> Number:
+    node = _new(Number)
+    node.__dict__.update(value=value, literal=literal, line=line, column=column, text="")
+    return node
+
+
+def power(base: Expr, exponent: Expr, line: int, column: int) -> Power:
+    node = _new(Power)
+    node.__dict__.update(base=base, exponent=exponent, line=line, column=column, text="")
+    return node
+
+
+def unit(unit: UnitExpr, line: int, column: int) -> Unit:
+    node = _new(Unit)
+    node.__dict__.update(unit=unit, line=line, column=column, text="")
+    return node
+
+
 # --- statements ---------------------------------------------------------------------------
 
 
