@@ -262,6 +262,12 @@ class SheetEvaluator:
                 return binding
             return imports.binding(name) or constants.get(name)
 
+        if not imports.names:  # the usual sheet: no other sheet lends it names
+
+            def lookup(name: str) -> Binding | None:
+                binding = visible.get(name)
+                return binding if binding is not None else constants.get(name)
+
         evaluator = StatementEvaluator(self.ctx, lookup, values)
         for index, slot in enumerate(slots):
             result, binding = self._evaluate_slot(

@@ -6,14 +6,27 @@ from worksheet.syntax import tree as t
 
 
 def _expr_names(expr: t.Expr | None) -> set[str]:
-    if expr is None:
-        return set()
     names: set[str] = set()
-    for node in t.walk(expr):
-        if isinstance(node, t.Name):
-            names.add(node.id)
-        elif isinstance(node, t.Call):
-            names.add(node.func)
+    if expr is None:
+        return names
+    stack: list[t.Expr] = [expr]
+    push = stack.append
+    while stack:  # by exact type: the tree's node classes have no subclasses
+        node = stack.pop()
+        kind = type(node)
+        if kind is t.Name:
+            names.add(node.id)  # type: ignore[union-attr]
+        elif kind is t.BinOp or kind is t.Equation:
+            push(node.left)  # type: ignore[union-attr]
+            push(node.right)  # type: ignore[union-attr]
+        elif kind is t.Power:
+            push(node.base)  # type: ignore[union-attr]
+            push(node.exponent)  # type: ignore[union-attr]
+        elif kind is t.Neg:
+            push(node.operand)  # type: ignore[union-attr]
+        elif kind is t.Call:
+            names.add(node.func)  # type: ignore[union-attr]
+            stack.extend(node.args)  # type: ignore[union-attr]
     return names
 
 

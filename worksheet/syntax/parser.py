@@ -310,8 +310,18 @@ def number_node(token: Token) -> t.Number:
         )
     if len(mantissa.replace(".", "")) > 60:
         raise ParseError(f"number {literal[:20]}... has too many digits", token.line, token.column)
-    value = Fraction(int(literal)) if literal.isdigit() else Fraction(literal)
+    value = _LITERALS.get(literal)
+    if value is None:
+        value = Fraction(int(literal)) if literal.isdigit() else Fraction(literal)
+        if len(_LITERALS) < _LITERALS_KEPT:
+            _LITERALS[literal] = value
     return t.number(value, literal, token.line, token.column)
+
+
+_LITERALS: dict[str, Fraction] = {}
+"""Exact values of literals already read (a Fraction is immutable, so one may be shared):
+a sheet writes the same few numbers, 2, 8, 1e3, over and over."""
+_LITERALS_KEPT = 4096
 
 
 def check_name(token: Token) -> None:

@@ -68,12 +68,18 @@ class Dimension:
         return cls(tuple(Fraction(powers.get(key, 0)) for key in keys))
 
     def __mul__(self, other: Dimension) -> Dimension:
+        found = _DONE.get(("*", self, other))
+        if found is not None:
+            return found
         return self._remembered(
             ("*", self, other),
             lambda: tuple(a + b for a, b in zip(self.exponents, other.exponents, strict=True)),
         )
 
     def __truediv__(self, other: Dimension) -> Dimension:
+        found = _DONE.get(("/", self, other))
+        if found is not None:
+            return found
         return self._remembered(
             ("/", self, other),
             lambda: tuple(a - b for a, b in zip(self.exponents, other.exponents, strict=True)),

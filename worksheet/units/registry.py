@@ -220,7 +220,9 @@ class UnitRegistry:
                 )
             resolved = parts[0]
         elif len(parts) == 1 and unit.factors[0][1] == 1 and unit.scale == 1:
-            resolved = dataclasses.replace(parts[0], source=unit.source)  # no re-rounding
+            # No re-rounding; the dimension worked out above is the one arithmetic hands
+            # out, so comparing it with a computed one is a matter of identity.
+            resolved = dataclasses.replace(parts[0], source=unit.source, dimension=dimension)
         else:
             resolved = ResolvedUnit(unit.source, _clean(factor), dimension)
         self._units[unit.source] = resolved
