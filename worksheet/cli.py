@@ -275,7 +275,11 @@ def _save(target: str, content: str | bytes) -> None:
 def _run(args: argparse.Namespace) -> int:
     target = args.output or args.file
     _check_output_folder(target)
-    run = _run_document(args.file, args.budget, lines_as_written=True)
+    worker = _worker_for([args.file])
+    try:
+        run = _run_document(args.file, args.budget, lines_as_written=True, worker=worker)
+    finally:
+        worker.close()
     _save(target, run.text)
     for warning in run.settings.warnings:
         print(f"{args.file}: warning: {warning}", file=sys.stderr)
@@ -287,11 +291,41 @@ def _run(args: argparse.Namespace) -> int:
     return 0 if run.all_hold else 1
 
 
-def _check(args: argparse.Namespace) -> int:
+def _worker_for(paths: Sequence[str]):
+    """One worker process for every file of a command; started at once when a file has
+    symbolic work, so that it imports sympy and warms up on another core meanwhile."""
     from worksheet.engine.budget import Worker
 
-    # One worker process for every file: each sheet's verbs find it started, and warm.
     worker = Worker()
+    if any(_mentions_symbolic_work(path) for path in paths):
+        worker.start_early()
+    return worker
+
+
+_SYMBOLIC_WORK = None
+
+
+def _mentions_symbolic_work(path: str) -> bool:
+    """Whether a sheet's text calls a verb, or has a 'scaling' or an equality 'check'
+    (a guess from the text: a wrong one costs only the early start)."""
+    global _SYMBOLIC_WORK
+    if _SYMBOLIC_WORK is None:
+        import re
+
+        from worksheet.syntax.names import VERB_NAMES
+
+        verbs = "|".join(sorted(VERB_NAMES))
+        _SYMBOLIC_WORK = re.compile(rf"\b(?:{verbs})\s*\(|\bscaling\b|\bcheck\b[^\n#]*==")
+    try:
+        text = Path(path).read_text(encoding="utf-8", errors="replace")
+    except OSError:
+        return False
+    return _SYMBOLIC_WORK.search(text) is not None
+
+
+def _check(args: argparse.Namespace) -> int:
+    # One worker process for every file: each sheet's verbs find it started, and warm.
+    worker = _worker_for(args.files)
     try:
         return _check_each(args, worker)
     finally:
@@ -491,9 +525,7 @@ def _compare(args: argparse.Namespace) -> int:
         _known_dataset(args.constants)
     if args.new is None and args.constants is None:
         raise UsageError("compare needs a second sheet or --constants DATASET")
-    from worksheet.engine.budget import Worker
-
-    worker = Worker()  # both runs' verbs in one process
+    worker = _worker_for([args.old, args.new or args.old])  # both runs' verbs in one process
     try:
         old = _run_document(args.old, args.budget, worker=worker)
         new = _run_document(args.new or args.old, args.budget, args.constants, worker=worker)

@@ -99,13 +99,13 @@ def test_issue12_a_running_thread_keeps_the_normal_exit() -> None:
 
 def test_issue12_check_of_several_sheets_starts_one_worker(monkeypatch, capsys) -> None:
     started: list[int] = []
-    original = budget.Worker._start
+    original = budget.Worker._launch
 
-    def counting_start(self: budget.Worker) -> None:
-        original(self)
+    def counting_launch(self: budget.Worker, warm: bool) -> None:
+        original(self, warm)
         started.append(self.pid or 0)
 
-    monkeypatch.setattr(budget.Worker, "_start", counting_start)
+    monkeypatch.setattr(budget.Worker, "_launch", counting_launch)
     assert cli.main(["check", *map(str, VERB_SHEETS)]) == 0
     out = capsys.readouterr().out
     assert out.count("all hold") == 2

@@ -32,6 +32,7 @@ def test_importing_the_engine_loads_no_ui() -> None:
     done = _python(
         "import sys\n"
         "import worksheet.engine\n"
+        "from worksheet.engine import SheetEvaluator, calculate, make_context\n"
         "print('textual' in sys.modules, 'rich' in sys.modules)\n"
     )
     assert done.returncode == 0, done.stderr

@@ -162,8 +162,13 @@ def _serve(
     parent_pid: int,
     use_death_signal: bool,
     memory_bytes: int | None,
+    warm: bool = False,
 ) -> None:
-    """Worker loop: receive (serial, function, args), send back (serial, status, payload)."""
+    """Worker loop: receive (serial, function, args), send back (serial, status, payload).
+
+    ``warm``: first import what the verbs need and run one small integral and solve, as a
+    worker started early does while its parent goes on with other work.
+    """
     with contextlib.suppress(OSError):
         inherited.close()  # the parent's end, copied by fork: keep it from holding the pipe
     # Ctrl-C reaches the whole process group; the parent handles it and stops the worker,
@@ -171,6 +176,12 @@ def _serve(
     with contextlib.suppress(ValueError, OSError):
         signal.signal(signal.SIGINT, signal.SIG_IGN)
     _die_with_parent(parent_pid, use_death_signal)
+    if warm:  # an optimisation only: if it fails, the verbs themselves say what fails
+        with contextlib.suppress(Exception):
+            preload_verb_modules()
+            from worksheet.engine.symbolic_ops import warm_up
+
+            warm_up()
     limit = _cap_memory(memory_bytes)
     connection.send((0, "ready", limit))
     while True:
@@ -232,6 +243,7 @@ class Worker:
         self._serial = 0
         self.memory_bytes = memory_bytes
         self.memory_limit: int | None = None  # the address-space limit the worker reported
+        self._starting = False  # launched, its 'ready' not read yet
 
     @property
     def pid(self) -> int | None:
@@ -239,24 +251,41 @@ class Worker:
         process = self._process
         return None if process is None else process.pid
 
+    def start_early(self) -> None:
+        """Start the worker now, without waiting for it: it imports sympy and warms up the
+        verbs on another core while this process goes on (the ``check`` of a sheet with
+        verbs, before this process has imported sympy itself). The first call waits for
+        it to be ready."""
+        with self._lock:
+            if self._process is None:
+                self._launch(warm=True)
+
     def _start(self) -> None:
         preload_verb_modules()
+        self._launch(warm=False)
+        self._wait_until_ready()
+
+    def _launch(self, warm: bool) -> None:
         methods = multiprocessing.get_all_start_methods()
         context = multiprocessing.get_context("fork" if "fork" in methods else "spawn")
         parent, child = context.Pipe()
         main = threading.current_thread() is threading.main_thread()
         process = context.Process(
             target=_serve,
-            args=(child, parent, os.getpid(), main, self.memory_bytes),
+            args=(child, parent, os.getpid(), main, self.memory_bytes, warm),
             daemon=True,
         )
         process.start()
         child.close()
         self._process, self._connection = process, parent
+        self._starting = True
+
+    def _wait_until_ready(self) -> None:
         try:
-            if not parent.poll(30):
+            if not self._connection.poll(30):
                 raise EvaluationError("the worker process did not start")
-            _, _, self.memory_limit = parent.recv()
+            _, _, self.memory_limit = self._connection.recv()
+            self._starting = False
         except BaseException:
             self._stop()
             raise
@@ -265,6 +294,7 @@ class Worker:
         # Forget the process first: an alarm landing in here must not leave it half-stopped.
         process, connection = self._process, self._connection
         self._process = self._connection = None
+        self._starting = False
         if process is not None:
             with contextlib.suppress(OSError, ValueError, AttributeError):
                 process.kill()
@@ -312,6 +342,8 @@ class Worker:
                 raise _over_budget(what, budget)
             if self._process is None or not self._process.is_alive():
                 self._start()
+            elif self._starting:  # started early: wait for its 'ready'
+                self._wait_until_ready()
             self._serial += 1
             try:
                 try:

@@ -207,3 +207,17 @@ def log_slope(expr: sympy.Expr, variable: sympy.Symbol) -> sympy.Expr:
 
 def _factors(expr: sympy.Expr) -> list[tuple[sympy.Expr, sympy.Expr]]:
     return [factor.as_base_exp() for factor in (expr.args if expr.is_Mul else (expr,))]
+
+
+def warm_up() -> None:
+    """One small definite integral and one solve, in a worker started early.
+
+    sympy's first integral and first solve in a process set up far more than later ones
+    (lazy imports, rule tables); a worker that does this while its parent is still
+    importing answers the sheet's first verbs sooner. The symbols are of their own, so no
+    cached result can stand in for a sheet's.
+    """
+    x = sympy.Symbol("_warm_x", positive=True)
+    y = sympy.Symbol("_warm_y", positive=True)
+    integrate(x**2 / y, x, sympy.Integer(0), y)
+    solve(x**3 / y, y, x)

@@ -25,6 +25,7 @@ from worksheet.errors import (
     ParseError,
 )
 from worksheet.syntax import tree as t
+from worksheet.syntax.names import VERB_NAMES
 from worksheet.syntax.unparse import to_text
 from worksheet.units.dimension import Dimension
 from worksheet.units.registry import UnitRegistry
@@ -52,20 +53,7 @@ FUNCTIONS: dict[str, Callable[..., sympy.Expr]] = {
     "cosh": sympy.cosh,
     "tanh": sympy.tanh,
 }
-VERBS = frozenset(
-    {
-        "diff",
-        "integrate",
-        "solve",
-        "simplify",
-        "expand",
-        "factor",
-        "series",
-        "limit",
-        "dsolve",
-        "subs",
-    }
-)
+VERBS = VERB_NAMES
 OTHER_CALLS = frozenset({"sqrt", "abs", "min", "max", "natural"})
 BUILTIN_CALLS = frozenset(FUNCTIONS) | VERBS | OTHER_CALLS
 

@@ -4,6 +4,22 @@ from __future__ import annotations
 
 from worksheet.syntax import tree as t
 
+VERB_NAMES = frozenset(
+    {
+        "diff",
+        "integrate",
+        "solve",
+        "simplify",
+        "expand",
+        "factor",
+        "series",
+        "limit",
+        "dsolve",
+        "subs",
+    }
+)
+"""The derivation verbs (symbolic work, run in the worker process)."""
+
 
 def _expr_names(expr: t.Expr | None) -> set[str]:
     names: set[str] = set()
