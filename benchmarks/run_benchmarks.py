@@ -62,6 +62,11 @@ def startup(rounds: int) -> dict[str, float]:
             "floor": command(PYTHON, "-c", FLOOR_CODE),
             "calc": command(PYTHON, "-m", "worksheet", "calc", "1"),
             "check": command(PYTHON, "-m", "worksheet", "check", *DEMOS),
+            # The same command with the interpreter's full teardown at exit, for comparison:
+            # the command line normally skips it (cli.entry), which H does not.
+            "check, full exit": command(
+                "env", "WORKSHEET_FULL_EXIT=1", PYTHON, "-m", "worksheet", "check", *DEMOS
+            ),
         },
         rounds,
     )
@@ -77,6 +82,11 @@ def startup(rounds: int) -> dict[str, float]:
             "H",
             1.0,
         )
+    )
+    full = times["check, full exit"]
+    print(
+        f"  (the same check with the interpreter's full teardown at exit: {full * 1000:.0f} ms"
+        f" = {full / floor:.2f} x H; for comparison only)"
     )
     return times
 
