@@ -7,6 +7,8 @@ from dataclasses import dataclass, field, fields
 from functools import cached_property
 from typing import Any
 
+from worksheet.frozen_init import quick_init
+
 
 class LazyForm:
     """A symbolic form built only when it is printed (the float fast path has none)."""
@@ -28,6 +30,7 @@ def built(form: Any) -> Any:
     return form.expr() if isinstance(form, LazyForm) else form
 
 
+@quick_init
 @dataclass(frozen=True)
 class StatementResult:
     """The outcome of one statement, as recorded in the sheet and printed by ``--json``.
