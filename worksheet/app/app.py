@@ -9,14 +9,16 @@ import contextlib
 import dataclasses
 from collections import Counter
 from collections.abc import Callable, Iterable
+from functools import partial
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 from rich.text import Text
-from textual import on, work
+from textual import events, on, work
 from textual.app import App, ComposeResult, SystemCommand
 from textual.containers import Horizontal, Vertical
 from textual.events import Resize
+from textual.message import Message
 from textual.screen import ModalScreen, Screen
 from textual.theme import BUILTIN_THEMES
 from textual.timer import Timer
@@ -74,6 +76,14 @@ def summary(results: Iterable[StatementResult]) -> str:
     return f"{total} {noun}: " + ", ".join(parts) if parts else "no results"
 
 
+class KeyHandled(Message):
+    """Follows a released key through the widgets it went to, back to the app."""
+
+    def __init__(self, number: int) -> None:
+        super().__init__()
+        self.number = number
+
+
 class WorksheetApp(App[int]):
     """The terminal app on one sheet file. Keys: see ``worksheet.app.keys``."""
 
@@ -110,6 +120,10 @@ class WorksheetApp(App[int]):
         self._notice = ""  # the last cell operation, kept in the status line
         # Where the sheet's focus was when the panel key moved it to the side panel.
         self._place: tuple[Widget, float] | None = None
+        # Keys typed before the editors are in, handed on one at a time after (None: not
+        # holding any more); the number of the key last handed on.
+        self._held: list[events.Event] | None = []
+        self._released = 0
         # Before the first stylesheet pass: a theme set after mounting would style every
         # widget twice before the first paint.
         self._install_themes()
@@ -178,10 +192,56 @@ class WorksheetApp(App[int]):
             )
 
     async def _after_first_paint(self) -> None:
-        """Start the engine (in its thread), then render the notes while it loads."""
+        """Start the engine (in its thread), then put the editors in and render the notes
+        while it loads."""
+        screen = self.main_screen
+        if isinstance(screen, SheetScreen):
+            screen.eager_layout = False  # back to textual's frame timer
         self.start_run()
+        await self.sheet.go_live()
+        await self._release_next_key()
         await self.sheet.render_notes()
         self._notes_rendered = True
+
+    # ----- keys typed before the editors are in
+
+    async def on_event(self, event: events.Event) -> None:
+        # Until the calc cells have their editors (right after the first paint) the keys
+        # typed wait here, in order; then they go on one at a time (see _release_next_key),
+        # as textual would have handed them on, so none is lost or overtaken.
+        if (
+            self._held is not None
+            and isinstance(event, events.Key | events.Paste)
+            and not event.is_forwarded
+        ):
+            self._held.append(event)
+            return
+        await super().on_event(event)
+
+    async def _release_next_key(self) -> None:
+        """Hand the oldest held key on; the next one goes once this one has been handled
+        by every widget it went to (or after a second, should that widget go meanwhile)."""
+        if not self._held:
+            self._held = None
+            return
+        event = self._held.pop(0)
+        self._released += 1
+        number = self._released
+        await super().on_event(event)  # as if it came from the terminal now
+        # Bubbling up from where the key went, through the same queues, this comes back
+        # after the key's handling (its bindings run when the key reaches the app).
+        (self.focused or self.screen).post_message(KeyHandled(number))
+        self.set_timer(1.0, partial(self._key_handled_by, number))
+
+    @on(KeyHandled)
+    async def _key_handled(self, message: KeyHandled) -> None:
+        await self._key_handled_by(message.number)
+
+    async def _key_handled_by(self, number: int) -> None:
+        # Only for the key last handed on: a late timer or message of an earlier one is
+        # ignored.
+        if number == self._released and self._held is not None:
+            await self._release_next_key()
 
     def _install_themes(self) -> None:
         loaded = load_themes()

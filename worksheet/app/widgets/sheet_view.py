@@ -20,15 +20,19 @@ if TYPE_CHECKING:  # the engine loads after the first paint
 CellView = CalcCellView | NoteCellView
 
 
-def cell_views(doc: SheetDocument, source_notes: bool = False) -> list[CellView]:
-    """A view per block, each calc cell showing the results its file records."""
+def cell_views(doc: SheetDocument, first_paint: bool = False) -> list[CellView]:
+    """A view per block, each calc cell showing the results its file records.
+
+    ``first_paint``: notes as source text and calc cells with their editors' stand-ins."""
     views: list[CellView] = []
     for index, block in enumerate(doc.blocks):
         if isinstance(block, CalcCell):
             recorded = block.result.lines() if block.result is not None else ()
-            views.append(CalcCellView(index, editor_text(block.body), block.first_line, recorded))
+            text = editor_text(block.body)
+            live = not first_paint
+            views.append(CalcCellView(index, text, block.first_line, recorded, live=live))
         else:
-            views.append(NoteCellView(index, block.text, source_first=source_notes))
+            views.append(NoteCellView(index, block.text, source_first=first_paint))
     return views
 
 
@@ -61,7 +65,8 @@ class SheetView(VerticalScroll):
         # Composed with the screen, the first cells are styled and laid out in the same
         # pass as everything else, instead of in a second one after mounting.
         if self._initial is not None:
-            yield from cell_views(self._initial, source_notes=True)
+            self.add_class("-first-paint")
+            yield from cell_views(self._initial, first_paint=True)
             self._initial = None
 
     async def rebuild(self, doc: SheetDocument) -> None:
@@ -69,6 +74,13 @@ class SheetView(VerticalScroll):
         the first paint, composed from ``__init__``'s document, shows their source)."""
         await self.remove_children()
         await self.mount_all(cell_views(doc))
+
+    async def go_live(self) -> None:
+        """Swap each calc cell's stand-in for its editor (once, after the first paint)."""
+        for view in self.cells():
+            if isinstance(view, CalcCellView):
+                await view.go_live()
+        self.remove_class("-first-paint")
 
     async def render_notes(self) -> None:
         """Render the notes still showing their source text as Markdown."""
@@ -111,7 +123,7 @@ class SheetView(VerticalScroll):
             if cursor is not None and view.index == index:
                 view.focus_row(*cursor, scroll=False)
             else:
-                view.editor.focus(scroll_visible=False)
+                view.focus_editor(scroll=False)
         else:
             view.focus(scroll_visible=False)
         return view
