@@ -23,7 +23,7 @@ from textual.screen import ModalScreen, Screen
 from textual.theme import BUILTIN_THEMES
 from textual.timer import Timer
 from textual.widget import Widget
-from textual.widgets import Static, TextArea
+from textual.widgets import Static
 from textual.worker import get_current_worker
 
 from worksheet.app.keys import KEY_ACTIONS, app_bindings
@@ -42,7 +42,7 @@ from worksheet.app.theme_files import (
     read_theme_file,
 )
 from worksheet.app.widgets.calc_cell import CalcCellView
-from worksheet.app.widgets.calc_editor import CalcEditor
+from worksheet.app.widgets.editors import is_calc_editor, is_text_area
 from worksheet.app.widgets.key_hints import KeyHints
 from worksheet.app.widgets.ledger import QuantityLedger
 from worksheet.app.widgets.links import QuantityLinks
@@ -53,7 +53,9 @@ from worksheet.app.widgets.status_line import StatusLine
 from worksheet.document import CalcCell, atomic_write_text, parse_document, render_document
 from worksheet.errors import WorksheetError
 
-if TYPE_CHECKING:  # the engine is imported by the first run, after the first paint
+if TYPE_CHECKING:  # the engine is imported by the first run, the editors after the first paint
+    from textual.widgets import TextArea
+
     from worksheet.app.evaluation import RunOutcome
     from worksheet.engine import StatementResult
 
@@ -442,9 +444,9 @@ class WorksheetApp(App[int]):
 
     # ----- the cursor's line
 
-    @on(TextArea.SelectionChanged)
-    def _cursor_moved(self, event: TextArea.SelectionChanged) -> None:
-        if isinstance(event.text_area, CalcEditor):
+    def on_text_area_selection_changed(self, event: TextArea.SelectionChanged) -> None:
+        # By name rather than ``@on``: the TextArea module loads after the first paint.
+        if is_calc_editor(event.text_area):
             self._show_cursor_result()
 
     def _focus_moved(self, _focused: Widget | None) -> None:
@@ -453,8 +455,8 @@ class WorksheetApp(App[int]):
     def _cursor_file_line(self) -> int | None:
         """The file line of the cursor when it is in a calc cell's editor."""
         editor = self.focused
-        view = editor.parent if isinstance(editor, CalcEditor) else None
-        if not isinstance(view, CalcCellView) or not isinstance(editor, CalcEditor):
+        view = editor.parent if is_calc_editor(editor) else None
+        if not isinstance(view, CalcCellView) or not is_calc_editor(editor):
             return None
         return view.first_line + editor.cursor_location[0]
 
@@ -580,7 +582,7 @@ class WorksheetApp(App[int]):
     def action_find_constant(self) -> None:
         from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET, load_dataset
 
-        target = self.focused if isinstance(self.focused, TextArea) else None
+        target: TextArea | None = self.focused if is_text_area(self.focused) else None  # type: ignore[assignment]
         # The front matter's dataset, read as the runner reads it (a bad name is reported
         # by the run); the runner itself is not imported here, it would load the engine.
         pinned = self.session.doc.get("constants") if self.session is not None else None
@@ -618,7 +620,7 @@ class WorksheetApp(App[int]):
     def _cursor(self) -> tuple[int, int] | None:
         """Where the cursor is in the focused editor, to put it back after a rebuild."""
         focused = self.focused
-        return focused.cursor_location if isinstance(focused, TextArea) else None
+        return focused.cursor_location if is_text_area(focused) else None  # type: ignore[union-attr]
 
     async def action_add_calc(self) -> None:
         await self._insert("calc")
@@ -644,6 +646,8 @@ class WorksheetApp(App[int]):
         if isinstance(view, NoteCellView):
             # A new note opens in its editor with its placeholder chosen: typing replaces it.
             await view.toggle_editing()
+            from textual.widgets import TextArea
+
             editor = view.query_one(TextArea)
             editor.select_all()
 
