@@ -114,3 +114,20 @@ def test_every_cell_of_a_long_sheet_gets_an_editable_editor(ui) -> None:
         assert body.splitlines()[0] == "q" + first_line
 
     ui.drive(app, scenario, size=(100, 30))
+
+
+def test_the_cycle_collector_runs_again_after_the_first_paint(tmp_path: Path, ui) -> None:
+    import gc
+
+    app = HeldApp(str(tmp_path / "fresh.sheet.md"))
+
+    async def scenario(pilot, app: HeldApp) -> None:
+        await pilot.pause(0.1)
+        assert not gc.isenabled()  # held while the first screen is made
+        app.release.set()
+        await ui.settle(pilot, app)
+        assert gc.isenabled()
+
+    assert gc.isenabled()
+    ui.drive(app, scenario, size=(100, 30))
+    assert gc.isenabled()

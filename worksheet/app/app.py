@@ -28,7 +28,7 @@ from textual.worker import get_current_worker
 
 from worksheet.app.keys import KEY_ACTIONS, app_bindings
 from worksheet.app.lazy_service import LazyRunService
-from worksheet.app.pauses import settle_long_lived
+from worksheet.app.pauses import CollectorHold, settle_long_lived
 from worksheet.app.recovery import newer_recovery, remove_recovery, write_recovery
 from worksheet.app.screens.choice import ChoiceScreen
 from worksheet.app.screens.sheet import SheetScreen
@@ -97,6 +97,7 @@ class WorksheetApp(App[int]):
     GIVE_UP_AFTER = 1.0
 
     def __init__(self, path: str, theme: str | None = None) -> None:
+        self._collector = CollectorHold()
         super().__init__()
         stylesheet = read_stylesheet()
         if stylesheet is not None:
@@ -152,6 +153,10 @@ class WorksheetApp(App[int]):
         yield StatusLine(id="status")
         yield KeyHints()
 
+    def on_load(self) -> None:
+        # Only once running: an app made and never run leaves the collector alone.
+        self._collector.hold()  # until the first paint (see _after_first_paint)
+
     def get_default_screen(self) -> Screen:
         return SheetScreen(id="_default")
 
@@ -199,6 +204,7 @@ class WorksheetApp(App[int]):
         screen = self.main_screen
         if isinstance(screen, SheetScreen):
             screen.eager_layout = False  # back to textual's frame timer
+        self._collector.release()
         self.start_run()
         await self.sheet.go_live()
         await self._release_next_key()
@@ -819,4 +825,5 @@ class WorksheetApp(App[int]):
             self.service.close()
 
     def on_unmount(self) -> None:
+        self._collector.release()  # an app that never painted (a sheet it cannot open)
         self.close_service()
