@@ -131,3 +131,47 @@ def test_the_cycle_collector_runs_again_after_the_first_paint(tmp_path: Path, ui
     assert gc.isenabled()
     ui.drive(app, scenario, size=(100, 30))
     assert gc.isenabled()
+
+
+def test_a_long_sheet_paints_its_first_screenful_and_adds_the_rest_after(ui) -> None:
+    from worksheet.document import parse_document
+
+    path = ROOT / "sheets" / "burst-budget.sheet.md"
+    blocks = len(parse_document(path.read_text(encoding="utf-8")).blocks)
+    app = HeldApp(str(path))
+
+    async def scenario(pilot, app: HeldApp) -> None:
+        await pilot.pause(0.1)
+        sheet = app.query_one(SheetView)
+        first = sheet.cells()
+        assert 0 < len(first) < blocks and not sheet.complete
+        # The cells composed fill the sheet's height: its last row shows a cell.
+        assert sheet.virtual_size.height > sheet.scrollable_content_region.height
+        app.release.set()
+        await ui.settle(pilot, app)
+        assert sheet.complete and len(sheet.cells()) == blocks
+        assert [view.index for view in sheet.cells()] == list(range(blocks))
+        # Scrolled to its end, the sheet shows its last cell's results.
+        sheet.scroll_end(animate=False, immediate=True)
+        await pilot.pause(0.1)
+        last = sheet.cells()[-1]
+        assert isinstance(last, CalcCellView) or last.blank or last.region.height > 0
+        calc = [view for view in sheet.cells() if isinstance(view, CalcCellView)][-1]
+        assert calc.first_line > 1 and f"calc  from line {calc.first_line}" in ui.screen_text(app)
+
+    ui.drive(app, scenario, size=(100, 30))
+
+
+def test_least_rows_never_exceeds_what_is_drawn(ui) -> None:
+    app = WorksheetApp(str(ROOT / "sheets" / "burst-budget.sheet.md"))
+
+    async def scenario(pilot, app: WorksheetApp) -> None:
+        from worksheet.app.widgets.sheet_view import least_rows
+
+        await ui.settle(pilot, app)
+        for view in app.query_one(SheetView).cells():
+            if isinstance(view, CalcCellView):
+                drawn = view.outer_size.height + 1  # and its margin
+                assert least_rows(view) <= drawn, view.index
+
+    ui.drive(app, scenario, size=(100, 30))

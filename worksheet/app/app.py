@@ -143,7 +143,13 @@ class WorksheetApp(App[int]):
         self.screen.set_class(self.size.width < NARROW_WIDTH, "-narrow", update=False)
         yield Static(id="title")
         with Horizontal(id="body"):
-            yield SheetView(self.session.doc if self.session else None, id="sheet")
+            # The cells of the first screenful (and the focused one); the rest after it.
+            yield SheetView(
+                self.session.doc if self.session else None,
+                rows=self.size.height,
+                through=self._first_focus(),
+                id="sheet",
+            )
             with Vertical(id="side"):
                 yield Static(Text("Quantities"), classes="panel-title")
                 yield QuantityLedger(id="ledger")
@@ -174,9 +180,7 @@ class WorksheetApp(App[int]):
         self.query_one(QuantityLinks).show(None)
         # Paint the sheet with the results its file records first, then compute: the run
         # would otherwise compete with the first paint for the interpreter.
-        # A new sheet starts in its empty calc cell, so the first keys typed go into it.
-        first = 0 if self.session.saved is not None else self._first_calc_block()
-        self._place_focus(first)
+        self._place_focus(self._first_focus())
         self.say(RECORDED_NOTICE)
         self.call_after_refresh(self._after_first_paint)
         self.set_interval(self.RECOVERY_SECONDS, self.keep_recovery)
@@ -206,6 +210,7 @@ class WorksheetApp(App[int]):
             screen.eager_layout = False  # back to textual's frame timer
         self._collector.release()
         self.start_run()
+        await self.sheet.mount_rest()
         await self.sheet.go_live()
         await self._release_next_key()
         await self.sheet.render_notes()
@@ -289,6 +294,13 @@ class WorksheetApp(App[int]):
                     self.unregister_theme(name)
 
     # ----- helpers
+
+    def _first_focus(self) -> int:
+        """The block focused at start: the top of a saved sheet; a new sheet's empty calc
+        cell, so the first keys typed go into it."""
+        if self.session is None or self.session.saved is not None:
+            return 0
+        return self._first_calc_block()
 
     def _first_calc_block(self) -> int:
         assert self.session is not None
@@ -408,6 +420,9 @@ class WorksheetApp(App[int]):
     def apply_outcome(self, outcome: RunOutcome, generation: int) -> None:
         """Show one run's results, unless a newer run has started since."""
         if generation != self._generation or self.session is None:
+            return
+        if not self.sheet.complete:  # a quick first run, before the sheet's lower cells
+            self.set_timer(0.02, partial(self.apply_outcome, outcome, generation))
             return
         first = self.outcome is None
         self.outcome = outcome

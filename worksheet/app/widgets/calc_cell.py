@@ -55,6 +55,8 @@ class CalcCellView(Vertical):
         self.index = index
         self.first_line = first_line
         self._initial = text
+        recorded = tuple(recorded)
+        self.recorded_count = len(recorded)
         lines = ResultLines()
         lines.show_recorded(recorded)
         self._results: list[ResultLines | PlotChart] = [lines]
@@ -89,6 +91,11 @@ class CalcCellView(Vertical):
         await source.remove()
 
     blank = False  # only blank notes are hidden
+
+    @property
+    def initial_text(self) -> str:
+        """The text the cell was made with (its editor's text may have changed since)."""
+        return self._initial
 
     def _header(self) -> Text:
         return Text(f"calc  from line {self.first_line}")
