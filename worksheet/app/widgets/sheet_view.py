@@ -114,9 +114,9 @@ class SheetView(VerticalScroll):
 
     async def mount_rest(self) -> None:
         """Mount the views the first paint left out (below its screenful)."""
-        later, self._later = self._later, []
-        if later:
-            await self.mount_all(later)
+        if self._later:
+            await self.mount_all(self._later)
+            self._later = []
 
     async def rebuild(self, doc: SheetDocument) -> None:
         """Replace every cell view by fresh ones for ``doc`` (notes rendered at once; only
