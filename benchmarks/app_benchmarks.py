@@ -3,9 +3,10 @@
 Run: python benchmarks/app_benchmarks.py
 (``--screenshot docs/screenshot.svg`` writes the README's screenshot instead.)
 
-1. Launch: process start to the first full paint of a demo sheet (every widget laid out,
-   the cells drawn with the results their file records, the notes from their source
-   text; the engine loads after it), against the floor
+1. Launch: process start to the first full paint of a demo sheet (the first screen's
+   widgets laid out, the cells on it drawn with the results their file records, calc
+   cells as coloured text and notes from their source text; the engine, the editors and
+   the cells below the first screenful load after it), against the floor
    ``import textual.app`` (and, for reference, sympy + numpy + pint + textual), the three
    processes started in turn and the medians compared. Target: at most 1.5 x the floor.
    The package's bytecode is written first, as an install writes it (textual, the floor,
@@ -43,8 +44,8 @@ from worksheet.app.app import WorksheetApp
 
 class Measured(WorksheetApp):
     def start_run(self):
-        # The app starts its first run right after the first refresh with the cells
-        # mounted: that is the first full paint.
+        # The app starts its first run right after the first refresh with the first
+        # screenful of cells mounted and laid out: that is the first full paint.
         text = "\\n".join(s.text for s in self.screen._compositor.render_strips())
         assert "calc  from line" in text and "f1 Help" in text, text
         print("ready", flush=True)

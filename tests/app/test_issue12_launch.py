@@ -98,8 +98,14 @@ def test_issue12_first_paint_modules_do_not_import_sympy() -> None:
 
 
 # Modules only a later step needs: the dataset (the constants finder, a new sheet's
-# front matter), the chart widgets (a run's plots), rendered Markdown (after the paint).
-LATER = ("worksheet.constants", "worksheet.app.chart_canvas", "textual.widgets._markdown")
+# front matter), the chart widgets (a run's plots), rendered Markdown and the editors
+# (after the paint).
+LATER = (
+    "worksheet.constants",
+    "worksheet.app.chart_canvas",
+    "textual.widgets._markdown",
+    "textual.widgets._text_area",
+)
 LATER_IMPORTS = loaded_after_first_paint_imports(LATER)
 
 

@@ -9,24 +9,26 @@ import contextlib
 import dataclasses
 from collections import Counter
 from collections.abc import Callable, Iterable
+from functools import partial
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 from rich.text import Text
-from textual import on, work
+from textual import events, on, work
 from textual.app import App, ComposeResult, SystemCommand
 from textual.containers import Horizontal, Vertical
 from textual.events import Resize
+from textual.message import Message
 from textual.screen import ModalScreen, Screen
 from textual.theme import BUILTIN_THEMES
 from textual.timer import Timer
 from textual.widget import Widget
-from textual.widgets import Static, TextArea
+from textual.widgets import Static
 from textual.worker import get_current_worker
 
 from worksheet.app.keys import KEY_ACTIONS, app_bindings
 from worksheet.app.lazy_service import LazyRunService
-from worksheet.app.pauses import settle_long_lived
+from worksheet.app.pauses import CollectorHold, settle_long_lived
 from worksheet.app.recovery import newer_recovery, remove_recovery, write_recovery
 from worksheet.app.screens.choice import ChoiceScreen
 from worksheet.app.screens.sheet import SheetScreen
@@ -40,7 +42,7 @@ from worksheet.app.theme_files import (
     read_theme_file,
 )
 from worksheet.app.widgets.calc_cell import CalcCellView
-from worksheet.app.widgets.calc_editor import CalcEditor
+from worksheet.app.widgets.editors import is_calc_editor, is_text_area
 from worksheet.app.widgets.key_hints import KeyHints
 from worksheet.app.widgets.ledger import QuantityLedger
 from worksheet.app.widgets.links import QuantityLinks
@@ -51,7 +53,9 @@ from worksheet.app.widgets.status_line import StatusLine
 from worksheet.document import CalcCell, atomic_write_text, parse_document, render_document
 from worksheet.errors import WorksheetError
 
-if TYPE_CHECKING:  # the engine is imported by the first run, after the first paint
+if TYPE_CHECKING:  # the engine is imported by the first run, the editors after the first paint
+    from textual.widgets import TextArea
+
     from worksheet.app.evaluation import RunOutcome
     from worksheet.engine import StatementResult
 
@@ -74,6 +78,14 @@ def summary(results: Iterable[StatementResult]) -> str:
     return f"{total} {noun}: " + ", ".join(parts) if parts else "no results"
 
 
+class KeyHandled(Message):
+    """Follows a released key through the widgets it went to, back to the app."""
+
+    def __init__(self, number: int) -> None:
+        super().__init__()
+        self.number = number
+
+
 class WorksheetApp(App[int]):
     """The terminal app on one sheet file. Keys: see ``worksheet.app.keys``."""
 
@@ -85,6 +97,7 @@ class WorksheetApp(App[int]):
     GIVE_UP_AFTER = 1.0
 
     def __init__(self, path: str, theme: str | None = None) -> None:
+        self._collector = CollectorHold()
         super().__init__()
         stylesheet = read_stylesheet()
         if stylesheet is not None:
@@ -110,6 +123,10 @@ class WorksheetApp(App[int]):
         self._notice = ""  # the last cell operation, kept in the status line
         # Where the sheet's focus was when the panel key moved it to the side panel.
         self._place: tuple[Widget, float] | None = None
+        # Keys typed before the editors are in, handed on one at a time after (None: not
+        # holding any more); the number of the key last handed on.
+        self._held: list[events.Event] | None = []
+        self._released = 0
         # Before the first stylesheet pass: a theme set after mounting would style every
         # widget twice before the first paint.
         self._install_themes()
@@ -126,7 +143,13 @@ class WorksheetApp(App[int]):
         self.screen.set_class(self.size.width < NARROW_WIDTH, "-narrow", update=False)
         yield Static(id="title")
         with Horizontal(id="body"):
-            yield SheetView(self.session.doc if self.session else None, id="sheet")
+            # The cells of the first screenful (and the focused one); the rest after it.
+            yield SheetView(
+                self.session.doc if self.session else None,
+                rows=self.size.height,
+                through=self._first_focus(),
+                id="sheet",
+            )
             with Vertical(id="side"):
                 yield Static(Text("Quantities"), classes="panel-title")
                 yield QuantityLedger(id="ledger")
@@ -135,6 +158,10 @@ class WorksheetApp(App[int]):
         yield Static(id="at-cursor")
         yield StatusLine(id="status")
         yield KeyHints()
+
+    def on_load(self) -> None:
+        # Only once running: an app made and never run leaves the collector alone.
+        self._collector.hold()  # until the first paint (see _after_first_paint)
 
     def get_default_screen(self) -> Screen:
         return SheetScreen(id="_default")
@@ -153,9 +180,7 @@ class WorksheetApp(App[int]):
         self.query_one(QuantityLinks).show(None)
         # Paint the sheet with the results its file records first, then compute: the run
         # would otherwise compete with the first paint for the interpreter.
-        # A new sheet starts in its empty calc cell, so the first keys typed go into it.
-        first = 0 if self.session.saved is not None else self._first_calc_block()
-        self._place_focus(first)
+        self._place_focus(self._first_focus())
         self.say(RECORDED_NOTICE)
         self.call_after_refresh(self._after_first_paint)
         self.set_interval(self.RECOVERY_SECONDS, self.keep_recovery)
@@ -178,10 +203,58 @@ class WorksheetApp(App[int]):
             )
 
     async def _after_first_paint(self) -> None:
-        """Start the engine (in its thread), then render the notes while it loads."""
+        """Start the engine (in its thread), then put the editors in and render the notes
+        while it loads."""
+        screen = self.main_screen
+        if isinstance(screen, SheetScreen):
+            screen.eager_layout = False  # back to textual's frame timer
+        self._collector.release()
         self.start_run()
+        await self.sheet.mount_rest()
+        await self.sheet.go_live()
+        await self._release_next_key()
         await self.sheet.render_notes()
         self._notes_rendered = True
+
+    # ----- keys typed before the editors are in
+
+    async def on_event(self, event: events.Event) -> None:
+        # Until the calc cells have their editors (right after the first paint) the keys
+        # typed wait here, in order; then they go on one at a time (see _release_next_key),
+        # as textual would have handed them on, so none is lost or overtaken.
+        if (
+            self._held is not None
+            and isinstance(event, events.Key | events.Paste)
+            and not event.is_forwarded
+        ):
+            self._held.append(event)
+            return
+        await super().on_event(event)
+
+    async def _release_next_key(self) -> None:
+        """Hand the oldest held key on; the next one goes once this one has been handled
+        by every widget it went to (or after a second, should that widget go meanwhile)."""
+        if not self._held:
+            self._held = None
+            return
+        event = self._held.pop(0)
+        self._released += 1
+        number = self._released
+        await super().on_event(event)  # as if it came from the terminal now
+        # Bubbling up from where the key went, through the same queues, this comes back
+        # after the key's handling (its bindings run when the key reaches the app).
+        (self.focused or self.screen).post_message(KeyHandled(number))
+        self.set_timer(1.0, partial(self._key_handled_by, number))
+
+    @on(KeyHandled)
+    async def _key_handled(self, message: KeyHandled) -> None:
+        await self._key_handled_by(message.number)
+
+    async def _key_handled_by(self, number: int) -> None:
+        # Only for the key last handed on: a late timer or message of an earlier one is
+        # ignored.
+        if number == self._released and self._held is not None:
+            await self._release_next_key()
 
     def _install_themes(self) -> None:
         loaded = load_themes()
@@ -221,6 +294,13 @@ class WorksheetApp(App[int]):
                     self.unregister_theme(name)
 
     # ----- helpers
+
+    def _first_focus(self) -> int:
+        """The block focused at start: the top of a saved sheet; a new sheet's empty calc
+        cell, so the first keys typed go into it."""
+        if self.session is None or self.session.saved is not None:
+            return 0
+        return self._first_calc_block()
 
     def _first_calc_block(self) -> int:
         assert self.session is not None
@@ -341,6 +421,9 @@ class WorksheetApp(App[int]):
         """Show one run's results, unless a newer run has started since."""
         if generation != self._generation or self.session is None:
             return
+        if not self.sheet.complete:  # a quick first run, before the sheet's lower cells
+            self.set_timer(0.02, partial(self.apply_outcome, outcome, generation))
+            return
         first = self.outcome is None
         self.outcome = outcome
         if first:
@@ -382,9 +465,9 @@ class WorksheetApp(App[int]):
 
     # ----- the cursor's line
 
-    @on(TextArea.SelectionChanged)
-    def _cursor_moved(self, event: TextArea.SelectionChanged) -> None:
-        if isinstance(event.text_area, CalcEditor):
+    def on_text_area_selection_changed(self, event: TextArea.SelectionChanged) -> None:
+        # By name rather than ``@on``: the TextArea module loads after the first paint.
+        if is_calc_editor(event.text_area):
             self._show_cursor_result()
 
     def _focus_moved(self, _focused: Widget | None) -> None:
@@ -393,8 +476,8 @@ class WorksheetApp(App[int]):
     def _cursor_file_line(self) -> int | None:
         """The file line of the cursor when it is in a calc cell's editor."""
         editor = self.focused
-        view = editor.parent if isinstance(editor, CalcEditor) else None
-        if not isinstance(view, CalcCellView) or not isinstance(editor, CalcEditor):
+        view = editor.parent if is_calc_editor(editor) else None
+        if not isinstance(view, CalcCellView) or not is_calc_editor(editor):
             return None
         return view.first_line + editor.cursor_location[0]
 
@@ -520,7 +603,7 @@ class WorksheetApp(App[int]):
     def action_find_constant(self) -> None:
         from worksheet.constants import DATASET_NAMES, DEFAULT_DATASET, load_dataset
 
-        target = self.focused if isinstance(self.focused, TextArea) else None
+        target: TextArea | None = self.focused if is_text_area(self.focused) else None  # type: ignore[assignment]
         # The front matter's dataset, read as the runner reads it (a bad name is reported
         # by the run); the runner itself is not imported here, it would load the engine.
         pinned = self.session.doc.get("constants") if self.session is not None else None
@@ -558,7 +641,7 @@ class WorksheetApp(App[int]):
     def _cursor(self) -> tuple[int, int] | None:
         """Where the cursor is in the focused editor, to put it back after a rebuild."""
         focused = self.focused
-        return focused.cursor_location if isinstance(focused, TextArea) else None
+        return focused.cursor_location if is_text_area(focused) else None  # type: ignore[union-attr]
 
     async def action_add_calc(self) -> None:
         await self._insert("calc")
@@ -584,6 +667,8 @@ class WorksheetApp(App[int]):
         if isinstance(view, NoteCellView):
             # A new note opens in its editor with its placeholder chosen: typing replaces it.
             await view.toggle_editing()
+            from textual.widgets import TextArea
+
             editor = view.query_one(TextArea)
             editor.select_all()
 
@@ -755,4 +840,5 @@ class WorksheetApp(App[int]):
             self.service.close()
 
     def on_unmount(self) -> None:
+        self._collector.release()  # an app that never painted (a sheet it cannot open)
         self.close_service()

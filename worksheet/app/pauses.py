@@ -20,3 +20,27 @@ def settle_long_lived() -> None:
     if not _settled:
         _settled = True
         gc.freeze()
+
+
+class CollectorHold:
+    """No cycle collection from the app's start to its first paint.
+
+    The start makes tens of thousands of objects (styles, widgets, strips) that stay
+    alive, and each young-generation collection triggered on the way walks them again; a
+    full one walks everything textual's import made too. Nothing made before the first
+    paint is garbage worth collecting that early: the collector is held until just after
+    it, then runs as usual.
+    """
+
+    def __init__(self) -> None:
+        self._was_enabled = False
+
+    def hold(self) -> None:
+        self._was_enabled = gc.isenabled()
+        gc.disable()
+
+    def release(self) -> None:
+        """Collect as before the hold (idempotent; a collector off before stays off)."""
+        if self._was_enabled:
+            self._was_enabled = False
+            gc.enable()

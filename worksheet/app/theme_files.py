@@ -11,16 +11,19 @@ colours. They become the variables ``syntax-comment`` and so on.
 
 from __future__ import annotations
 
+import importlib
 import tomllib
 from dataclasses import dataclass
-from importlib import resources
-from importlib.resources.abc import Traversable
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from textual.color import Color, ColorParseError
 from textual.theme import Theme
 
 from worksheet.errors import WorksheetError
+
+if TYPE_CHECKING:  # importlib.resources is loaded only for a package that is no folder
+    from importlib.resources.abc import Traversable
 
 # The top-level themes/ folder, installed as this package (see pyproject.toml).
 THEMES_PACKAGE = "worksheet.themes"
@@ -130,7 +133,16 @@ def parse_theme(text: str, label: str) -> Theme:
 
 
 def themes_folder() -> Traversable:
-    """The shipped themes, wherever the package is installed (folder, wheel or zip)."""
+    """The shipped themes, wherever the package is installed (folder, wheel or zip).
+
+    A plain folder is used as such: ``resources.files`` would load its zip support (a few
+    milliseconds at start) to hand back the same folder."""
+    package = importlib.import_module(THEMES_PACKAGE)
+    locations = list(getattr(package.__spec__, "submodule_search_locations", None) or [])
+    if len(locations) == 1 and Path(locations[0]).is_dir():
+        return Path(locations[0])
+    from importlib import resources
+
     return resources.files(THEMES_PACKAGE)
 
 

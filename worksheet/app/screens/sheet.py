@@ -1,4 +1,5 @@
-"""The sheet's screen (the first on the stack): it takes no focus of its own accord."""
+"""The sheet's screen (the first on the stack): it takes no focus of its own accord, and
+it lays itself out no more often than its size or content asks."""
 
 from __future__ import annotations
 
@@ -24,4 +25,27 @@ class SheetScreen(Screen[None]):
         if not self._resumed:
             self._resumed = True
             event.refresh_styles = False
-        super()._on_screen_resume(event)
+            # textual then hides its (empty) notification rack a moment later, and that
+            # change of display asks for one more layout pass: hidden already, it does not.
+            for rack in self.query_children("ToastRack"):
+                rack.display = False
+        # textual calls Screen's own handler next (handlers run along the class's MRO).
+
+    async def _on_resize(self, event: events.Resize) -> None:
+        # At start the screen is told its size several times over, and textual lays the
+        # whole screen out again each time; at the size already laid out, with nothing
+        # waiting for a layout, that pass would change nothing.
+        if event.size == self._compositor.size and not self._layout_widgets:
+            event.stop()
+            event.prevent_default()  # Screen's own handler, next in the MRO, is not called
+        # Otherwise Screen's handler lays the screen out (handlers run along the MRO).
+
+    # Until the app's first paint is on screen, a layout asked for is done when the screen
+    # is next idle instead of at the next tick of textual's frame timer (up to 1/60 s of
+    # waiting, with nothing else to do). The app turns this off after the first paint.
+    eager_layout = True
+
+    async def _on_idle(self, event: events.Idle) -> None:
+        waiting = self._layout_required or self._scroll_required or self._dirty_widgets
+        if waiting and self.eager_layout and self.is_current and not self.app._batch_count:
+            self._on_timer_update()

@@ -11,15 +11,14 @@ import contextlib
 from typing import TYPE_CHECKING
 
 from rich.text import Text
-from textual import on
 from textual.app import ComposeResult
 from textual.containers import Vertical
 from textual.message import Message
 from textual.widget import MountError
-from textual.widgets import Static, TextArea
+from textual.widgets import Static
 
 if TYPE_CHECKING:  # loaded after the first paint
-    from textual.widgets import Markdown
+    from textual.widgets import Markdown, TextArea
 
 
 # Lines that start a block of their own in Markdown (not joined to the line above).
@@ -114,6 +113,8 @@ class NoteCellView(Vertical, can_focus=True):
     async def toggle_editing(self) -> None:
         """Swap between the rendered note and its editor."""
         if self.editing:
+            from textual.widgets import TextArea
+
             editor = self.query_one(TextArea)
             self.text = editor.text
             await editor.remove()
@@ -123,13 +124,15 @@ class NoteCellView(Vertical, can_focus=True):
             self.focus()
             return
         await self.remove_children()
+        from textual.widgets import TextArea
+
         editor = TextArea(self.text, tab_behavior="focus", soft_wrap=True)
         await self.mount(editor)
         self.add_class("-editing")
         editor.focus()
 
-    @on(TextArea.Changed)
-    def _changed(self, event: TextArea.Changed) -> None:
+    def on_text_area_changed(self, event: TextArea.Changed) -> None:
+        # By name rather than ``@on``: the TextArea module loads after the first paint.
         event.stop()
         self.text = event.text_area.text
         self.post_message(self.Edited(self.index, self.text))

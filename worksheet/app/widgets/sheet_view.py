@@ -10,7 +10,7 @@ from textual.widget import Widget
 
 from worksheet.app.session import editor_text
 from worksheet.app.widgets.calc_cell import CalcCellView
-from worksheet.app.widgets.note_cell import NoteCellView
+from worksheet.app.widgets.note_cell import NoteCellView, source_text
 from worksheet.document import CalcCell, SheetDocument
 
 if TYPE_CHECKING:  # the engine loads after the first paint
@@ -20,16 +20,40 @@ if TYPE_CHECKING:  # the engine loads after the first paint
 CellView = CalcCellView | NoteCellView
 
 
-def cell_views(doc: SheetDocument, source_notes: bool = False) -> list[CellView]:
-    """A view per block, each calc cell showing the results its file records."""
+def cell_views(doc: SheetDocument, first_paint: bool = False) -> list[CellView]:
+    """A view per block, each calc cell showing the results its file records.
+
+    ``first_paint``: notes as source text and calc cells with their editors' stand-ins."""
     views: list[CellView] = []
     for index, block in enumerate(doc.blocks):
         if isinstance(block, CalcCell):
             recorded = block.result.lines() if block.result is not None else ()
-            views.append(CalcCellView(index, editor_text(block.body), block.first_line, recorded))
+            text = editor_text(block.body)
+            live = not first_paint
+            views.append(CalcCellView(index, text, block.first_line, recorded, live=live))
         else:
-            views.append(NoteCellView(index, block.text, source_first=source_notes))
+            views.append(NoteCellView(index, block.text, source_first=first_paint))
     return views
+
+
+def least_rows(view: CellView) -> int:
+    """The fewest screen rows ``view`` can take at the first paint, at any width (each
+    line of its text, its results and its frame takes one at least)."""
+    if isinstance(view, NoteCellView):
+        return 0 if view.blank else source_text(view.text).plain.count("\n") + 2
+    header, frame, margin = 1, 2, 1
+    return header + frame + view.initial_text.count("\n") + 1 + view.recorded_count + margin
+
+
+def first_screenful(views: list[CellView], rows: int, through: int) -> int:
+    """How many of ``views`` the first paint needs: enough to fill ``rows`` for certain,
+    and the one at index ``through`` (it gets the focus)."""
+    filled = 0
+    for count, view in enumerate(views, start=1):
+        filled += least_rows(view)
+        if filled >= rows and count > through:
+            return count
+    return len(views)
 
 
 class SheetView(VerticalScroll):
@@ -52,23 +76,61 @@ class SheetView(VerticalScroll):
             focused = parent if isinstance(parent, Widget) else None
         return None
 
-    def __init__(self, doc: SheetDocument | None = None, **kwargs: object) -> None:
-        """``doc``: the cells to compose at once (the first paint: notes as source text)."""
+    def __init__(
+        self,
+        doc: SheetDocument | None = None,
+        rows: int | None = None,
+        through: int = 0,
+        **kwargs: object,
+    ) -> None:
+        """``doc``: the cells to compose at once (the first paint: notes as source text);
+        ``rows``: only as many as fill that many rows (and the one at ``through``) then,
+        the rest once ``mount_rest`` is called."""
         super().__init__(**kwargs)  # type: ignore[arg-type]
         self._initial = doc
+        self._rows = rows
+        self._through = through
+        self._later: list[CellView] = []
+
+    @property
+    def complete(self) -> bool:
+        """Every block of the sheet has its view among the children."""
+        return not self._later
 
     def compose(self) -> ComposeResult:
         # Composed with the screen, the first cells are styled and laid out in the same
         # pass as everything else, instead of in a second one after mounting.
         if self._initial is not None:
-            yield from cell_views(self._initial, source_notes=True)
+            self.add_class("-first-paint")
+            views = cell_views(self._initial, first_paint=True)
+            count = (
+                len(views)
+                if self._rows is None
+                else first_screenful(views, self._rows, self._through)
+            )
+            self._later = views[count:]
+            yield from views[:count]
             self._initial = None
+
+    async def mount_rest(self) -> None:
+        """Mount the views the first paint left out (below its screenful)."""
+        if self._later:
+            await self.mount_all(self._later)
+            self._later = []
 
     async def rebuild(self, doc: SheetDocument) -> None:
         """Replace every cell view by fresh ones for ``doc`` (notes rendered at once; only
         the first paint, composed from ``__init__``'s document, shows their source)."""
+        self._later = []
         await self.remove_children()
         await self.mount_all(cell_views(doc))
+
+    async def go_live(self) -> None:
+        """Swap each calc cell's stand-in for its editor (once, after the first paint)."""
+        for view in self.cells():
+            if isinstance(view, CalcCellView):
+                await view.go_live()
+        self.remove_class("-first-paint")
 
     async def render_notes(self) -> None:
         """Render the notes still showing their source text as Markdown."""
@@ -111,7 +173,7 @@ class SheetView(VerticalScroll):
             if cursor is not None and view.index == index:
                 view.focus_row(*cursor, scroll=False)
             else:
-                view.editor.focus(scroll_visible=False)
+                view.focus_editor(scroll=False)
         else:
             view.focus(scroll_visible=False)
         return view
