@@ -3,8 +3,10 @@
 from __future__ import annotations
 
 import argparse
+import functools
 import json
 import os
+import re
 import sys
 from collections.abc import Sequence
 from pathlib import Path
@@ -302,25 +304,22 @@ def _worker_for(paths: Sequence[str]):
     return worker
 
 
-_SYMBOLIC_WORK = None
+@functools.cache
+def _symbolic_work() -> re.Pattern[str]:
+    from worksheet.syntax.names import VERB_NAMES
+
+    verbs = "|".join(sorted(VERB_NAMES))
+    return re.compile(rf"\b(?:{verbs})\s*\(|\bscaling\b|\bcheck\b[^\n#]*==")
 
 
 def _mentions_symbolic_work(path: str) -> bool:
     """Whether a sheet's text calls a verb, or has a 'scaling' or an equality 'check'
     (a guess from the text: a wrong one costs only the early start)."""
-    global _SYMBOLIC_WORK
-    if _SYMBOLIC_WORK is None:
-        import re
-
-        from worksheet.syntax.names import VERB_NAMES
-
-        verbs = "|".join(sorted(VERB_NAMES))
-        _SYMBOLIC_WORK = re.compile(rf"\b(?:{verbs})\s*\(|\bscaling\b|\bcheck\b[^\n#]*==")
     try:
         text = Path(path).read_text(encoding="utf-8", errors="replace")
     except OSError:
         return False
-    return _SYMBOLIC_WORK.search(text) is not None
+    return _symbolic_work().search(text) is not None
 
 
 def _check(args: argparse.Namespace) -> int:

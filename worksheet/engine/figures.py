@@ -21,7 +21,6 @@ import sympy
 
 from worksheet.engine.numeric import DUAL, Dual, MissingValue, MpBackend, evaluate
 from worksheet.errors import EvaluationError
-from worksheet.frozen_init import quick_init
 
 if TYPE_CHECKING:
     from worksheet.engine.bindings import Binding
@@ -42,7 +41,6 @@ MAX_RECORDED_BITS = 100_000
 _MP = MpBackend(50)
 
 
-@quick_init
 @dataclass(frozen=True)
 class Figures:
     """Numbers for one expression. ``value`` is the double-precision SI value (None when a

@@ -7,8 +7,6 @@ from dataclasses import dataclass, field, fields
 from functools import cached_property
 from typing import Any
 
-from worksheet.frozen_init import quick_init
-
 
 class LazyForm:
     """A symbolic form built only when it is printed (the float fast path has none)."""
@@ -30,7 +28,6 @@ def built(form: Any) -> Any:
     return form.expr() if isinstance(form, LazyForm) else form
 
 
-@quick_init
 @dataclass(frozen=True)
 class StatementResult:
     """The outcome of one statement, as recorded in the sheet and printed by ``--json``.
@@ -62,6 +59,55 @@ class StatementResult:
     """Structured data behind a record the exports typeset (a table's columns, a scaling
     form's exponents, the high-precision value as recorded where the precision guard found
     a loss), so no face reads the record text back; not part of ``--json``."""
+
+    def __init__(
+        self,
+        line: int,
+        kind: str,
+        text: str,
+        status: str,
+        name: str | None = None,
+        message: str | None = None,
+        value: float | None = None,
+        unit: str | None = None,
+        si_value: float | None = None,
+        si_unit: str | None = None,
+        dimension: str | None = None,
+        symbolic_text: str | None = None,
+        uncertainty: float | None = None,
+        record: str | None = None,
+        precision: str | None = None,
+        plot: Any = None,
+        sampled: Any = None,
+        imported: Any = None,
+        form: Any = None,
+        detail: Any = None,
+    ) -> None:
+        # Written out rather than generated: a frozen dataclass's own __init__ sets each of
+        # the twenty fields through object.__setattr__ (3.7 us a result, 1.3 us this way),
+        # and every statement makes one. tests/engine/test_issue12_frozen_init.py keeps the
+        # parameters in step with the fields. The instance stays frozen.
+        fill = self.__dict__
+        fill["line"] = line
+        fill["kind"] = kind
+        fill["text"] = text
+        fill["status"] = status
+        fill["name"] = name
+        fill["message"] = message
+        fill["value"] = value
+        fill["unit"] = unit
+        fill["si_value"] = si_value
+        fill["si_unit"] = si_unit
+        fill["dimension"] = dimension
+        fill["symbolic_text"] = symbolic_text
+        fill["uncertainty"] = uncertainty
+        fill["record"] = record
+        fill["precision"] = precision
+        fill["plot"] = plot
+        fill["sampled"] = sampled
+        fill["imported"] = imported
+        fill["form"] = form
+        fill["detail"] = detail
 
     @cached_property
     def symbolic(self) -> str | None:

@@ -256,13 +256,15 @@ class SheetEvaluator:
         constants = self.ctx.constants
         imports = self._imports
 
-        def lookup(name: str) -> Binding | None:
-            binding = visible.get(name)
-            if binding is not None:
-                return binding
-            return imports.binding(name) or constants.get(name)
+        if imports.names:
 
-        if not imports.names:  # the usual sheet: no other sheet lends it names
+            def lookup(name: str) -> Binding | None:
+                binding = visible.get(name)
+                if binding is not None:
+                    return binding
+                return imports.binding(name) or constants.get(name)
+
+        else:  # the usual sheet: no other sheet lends it names
 
             def lookup(name: str) -> Binding | None:
                 binding = visible.get(name)

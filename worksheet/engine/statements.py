@@ -60,7 +60,6 @@ from worksheet.errors import (
     NameResolutionError,
     WorksheetError,
 )
-from worksheet.frozen_init import quick_init
 from worksheet.syntax import tree as t
 from worksheet.syntax.unparse import to_text
 from worksheet.units.dimension import Dimension
@@ -86,7 +85,6 @@ RESERVED_NAMES = frozenset({"pi", INFINITY})
 """Built-in numbers a sheet cannot define."""
 
 
-@quick_init
 @dataclass(frozen=True)
 class Quantity:
     """A translated expression with its numbers (``si`` is None when symbolic)."""

@@ -24,7 +24,6 @@ from worksheet.errors import (
     NameResolutionError,
     ParseError,
 )
-from worksheet.frozen_init import quick_init
 from worksheet.syntax import tree as t
 from worksheet.syntax.names import VERB_NAMES
 from worksheet.syntax.unparse import to_text
@@ -59,7 +58,6 @@ OTHER_CALLS = frozenset({"sqrt", "abs", "min", "max", "natural"})
 BUILTIN_CALLS = frozenset(FUNCTIONS) | VERBS | OTHER_CALLS
 
 
-@quick_init
 @dataclass(frozen=True)
 class Typed:
     expr: sympy.Expr

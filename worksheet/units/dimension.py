@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
 
@@ -50,14 +49,6 @@ class Dimension:
             return NotImplemented
         return hash(self) == hash(other) and self.exponents == other.exponents
 
-    def _remembered(self, key: tuple[object, ...], exponents: Callable[[], tuple]) -> Dimension:
-        found = _DONE.get(key)
-        if found is None:
-            if len(_DONE) >= _DONE_LIMIT:
-                _DONE.clear()
-            found = _DONE[key] = _canonical(exponents())
-        return found
-
     @classmethod
     def of(cls, **powers: int | Fraction) -> Dimension:
         """``Dimension.of(length=1, time=-1)`` is a velocity."""
@@ -68,27 +59,27 @@ class Dimension:
         return cls(tuple(Fraction(powers.get(key, 0)) for key in keys))
 
     def __mul__(self, other: Dimension) -> Dimension:
-        found = _DONE.get(("*", self, other))
-        if found is not None:
-            return found
-        return self._remembered(
-            ("*", self, other),
-            lambda: tuple(a + b for a, b in zip(self.exponents, other.exponents, strict=True)),
-        )
+        key = ("*", self, other)
+        found = _DONE.get(key)
+        if found is None:
+            pairs = zip(self.exponents, other.exponents, strict=True)
+            found = _remember(key, tuple(a + b for a, b in pairs))
+        return found
 
     def __truediv__(self, other: Dimension) -> Dimension:
-        found = _DONE.get(("/", self, other))
-        if found is not None:
-            return found
-        return self._remembered(
-            ("/", self, other),
-            lambda: tuple(a - b for a, b in zip(self.exponents, other.exponents, strict=True)),
-        )
+        key = ("/", self, other)
+        found = _DONE.get(key)
+        if found is None:
+            pairs = zip(self.exponents, other.exponents, strict=True)
+            found = _remember(key, tuple(a - b for a, b in pairs))
+        return found
 
     def __pow__(self, power: Fraction | int) -> Dimension:
-        return self._remembered(
-            ("^", self, power), lambda: tuple(a * Fraction(power) for a in self.exponents)
-        )
+        key = ("^", self, power)
+        found = _DONE.get(key)
+        if found is None:
+            found = _remember(key, tuple(a * Fraction(power) for a in self.exponents))
+        return found
 
     @property
     def dimensionless(self) -> bool:
@@ -133,6 +124,14 @@ class Dimension:
 
     def __str__(self) -> str:
         return self.name()
+
+
+def _remember(key: tuple[object, ...], exponents: tuple[Fraction, ...]) -> Dimension:
+    """Keep the result of one product, quotient or power (as its canonical instance)."""
+    if len(_DONE) >= _DONE_LIMIT:
+        _DONE.clear()
+    found = _DONE[key] = _canonical(exponents)
+    return found
 
 
 _CANONICAL: dict[tuple[Fraction, ...], Dimension] = {}
