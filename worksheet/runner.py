@@ -236,6 +236,9 @@ class _LastRun:
     not_current: set[int]
     stale: dict[int, StaleLine] = field(default_factory=dict)
     uses_sheets: bool = False  # a 'use' line: every run re-reads the used files
+    # The evaluator's run count just after this run: when it still reads so, the evaluator
+    # holds these very statements, and an edit may name the ones it replaces.
+    evaluator_runs: int = -1
 
     @classmethod
     def of(
@@ -382,6 +385,7 @@ class SheetRunner:
             self._last = _LastRun.of(settings, doc, statements, results, sizes, per_cell, lines_of)
             self._last.stale = {id(item.statement): item for item in stale}
             self._last.uses_sheets = any(result.kind == "use" for result in results)
+            self._last.evaluator_runs = evaluator.runs
         return SheetRun(
             settings,
             tuple(statements),
@@ -410,6 +414,7 @@ class SheetRunner:
             return None
         edited = list(compress(range(len(cells)), map(operator.is_not, cells, last.cells)))
         statements = list(last.statements)
+        replaced: list[int] = []
         for position in edited:
             cell = cells[position]
             if _USE_LINE.search(cell.body):
@@ -419,16 +424,22 @@ class SheetRunner:
             if len(split) != size:
                 return None
             statements[start : start + size] = split
+            replaced.extend(range(start, start + size))
         evaluator = self.evaluator(settings)
-        results = evaluator.run(statements)
+        in_step = evaluator.runs == last.evaluator_runs
+        results = evaluator.run(statements, replaced if in_step else None)
         if len(results) != len(statements):
             return None
         moved = evaluator.rerun
         if moved is None:
             moved = compress(range(len(results)), map(operator.is_not, results, last.results))
         touched = sorted(set(edited) | {last.cell_of[index] for index in moved})
-        per_cell = list(last.per_cell)
-        lines_of = list(last.lines_of)
+        # The last run's tables are brought up to date in place (a copy of a long sheet's
+        # tables would cost more than the edit); should anything below fail, the next run is
+        # a full one.
+        self._last = None
+        per_cell = last.per_cell
+        lines_of = last.lines_of
         stale = dict(last.stale)
         for position in touched:
             start, size = last.starts[position], last.sizes[position]
@@ -468,6 +479,7 @@ class SheetRunner:
             not_current,
             stale,
             last.uses_sheets,
+            evaluator.runs,
         )
         return SheetRun(
             settings,

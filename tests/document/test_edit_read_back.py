@@ -7,7 +7,7 @@ from pathlib import Path
 import pytest
 
 from worksheet.document import edit, parse_document, render_document, replace_cell_body
-from worksheet.runner import SheetRunner
+from worksheet.runner import SheetRunner, document_statements
 
 SHEETS = sorted((Path(__file__).resolve().parents[2] / "sheets").glob("*.sheet.md"))
 
@@ -123,3 +123,83 @@ def test_issue12_runs_after_edits_match_a_fresh_run() -> None:
                 (s.statement.line, s.recorded, s.recomputed) for s in fresh.stale
             ]
             assert ours.stale  # the hand-spoilt cell and every edit leave stale lines
+
+
+def _walked_tables(doc) -> tuple[tuple, tuple[int, ...]]:
+    """The cell tables as a walk over every block gives them."""
+    indices = tuple(k for k, block in enumerate(doc.blocks) if isinstance(block, edit.CalcCell))
+    return tuple(doc.blocks[k] for k in indices), indices
+
+
+def test_issue12_an_edit_carries_the_cell_tables_it_does_not_change() -> None:
+    # An edit that moves no line takes the cell tables over from the sheet it edits; they
+    # must be the ones a walk over the new blocks gives, cell for cell (the same objects).
+    with _runner() as runner:
+        doc = runner.run(parse_document(_long_sheet(12))).document
+        for position in (0, 5, 12):
+            index = doc.calc_cell_indices()[position]
+            body = doc.blocks[index].body.replace("=", " = ", 1)
+            doc = replace_cell_body(doc, index, body)
+            for current in (doc, runner.run(doc).document):
+                cells, indices = _walked_tables(current)
+                assert current.calc_cell_indices() == indices
+                assert all(a is b for a, b in zip(current.calc_cells(), cells, strict=True))
+        # A line added moves every later block: the tables are walked afresh, and agree.
+        index = doc.calc_cell_indices()[3]
+        doc = replace_cell_body(doc, index, doc.blocks[index].body + "z = 1 [m]\n")
+        cells, indices = _walked_tables(doc)
+        assert doc.calc_cell_indices() == indices
+        assert all(a is b for a, b in zip(doc.calc_cells(), cells, strict=True))
+
+
+def _same_as_fresh(ours, doc) -> None:
+    with _runner() as fresh_runner:
+        fresh = fresh_runner.run(doc)
+    assert ours.text == fresh.text
+    assert [r.record for r in ours.results] == [r.record for r in fresh.results]
+
+
+def test_issue12_an_evaluator_run_by_another_caller_is_not_trusted_for_an_edit() -> None:
+    # The runner names the statements an edit replaces only when its evaluator still holds
+    # the runner's last statements. Here another caller runs it on a sheet whose cell 10
+    # differs; the runner's next edit (of cell 0) must still give cell 10 back its own text.
+    with _runner() as runner:
+        doc = runner.run(parse_document(_long_sheet(20))).document
+        runner.run(doc)  # now the runner's last cells are this sheet's: an edit is narrow
+        other_index = doc.calc_cell_indices()[10]
+        other = replace_cell_body(doc, other_index, "x9 = 42 [m]\ny9 = x9*r/(1 [m])\n")
+        evaluator = runner.evaluator(runner.settings(doc))
+        evaluator.run(document_statements(other))
+        first = doc.calc_cell_indices()[0]
+        doc = replace_cell_body(doc, first, "M = 7e11 [kg]\nr = 2*G*M/c^2\n")
+        _same_as_fresh(runner.run(doc), doc)
+
+
+def test_issue12_a_failure_while_recording_an_edit_leaves_later_runs_as_a_fresh_run(
+    monkeypatch,
+) -> None:
+    # The edit path updates its tables in place. When recording fails part way, later runs
+    # (the same cell edited again, the edit undone, another cell edited) must still read
+    # as a fresh run of their text does: nothing may build on the half-updated tables.
+    import worksheet.runner as runner_module
+
+    with _runner() as runner:
+        doc = runner.run(parse_document(_long_sheet(20))).document
+        runner.run(doc)  # now the runner's last cells are this sheet's: an edit is narrow
+        first, fifth = doc.calc_cell_indices()[0], doc.calc_cell_indices()[4]
+        real = runner_module.with_results
+
+        def failing(*args, **kwargs):
+            raise RuntimeError("recording failed")
+
+        monkeypatch.setattr(runner_module, "with_results", failing)
+        edited = replace_cell_body(doc, first, "M = 8e11 [kg]\nr = 2*G*M/c^2\n")
+        with pytest.raises(RuntimeError):
+            runner.run(edited)
+        monkeypatch.setattr(runner_module, "with_results", real)
+        undone = runner.run(doc)  # the failed edit given up: the sheet as it was
+        _same_as_fresh(undone, doc)
+        other = replace_cell_body(doc, fifth, "x3 = 5 [m]\ny3 = x3*r/(1 [m])\n")
+        _same_as_fresh(runner.run(other), other)
+        again = replace_cell_body(other, first, "M = 9e11 [kg]\nr = 2*G*M/c^2\n")
+        _same_as_fresh(runner.run(again), again)

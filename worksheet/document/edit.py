@@ -219,6 +219,7 @@ def _finish_cells(doc: SheetDocument, changed: Mapping[int, CalcCell]) -> SheetD
     blocks = list(doc.blocks)
     last = len(blocks) - 1
     shift_after: dict[int, int] = {}
+    placed: dict[int, CalcCell] = {}
     shift = 0
     for index in sorted(changed):
         old = blocks[index]
@@ -239,7 +240,7 @@ def _finish_cells(doc: SheetDocument, changed: Mapping[int, CalcCell]) -> SheetD
             or replace(alone.blocks[0], first_line=0) != replace(cell, first_line=0)
         ):
             return None
-        blocks[index] = replace(cell, first_line=old.first_line + shift)
+        blocks[index] = placed[index] = replace(cell, first_line=old.first_line + shift)
         shift += len(split_lines(text)) - len(split_lines(render_block(old)))
         shift_after[index] = shift
     if shift or any(shift_after.values()):
@@ -250,7 +251,9 @@ def _finish_cells(doc: SheetDocument, changed: Mapping[int, CalcCell]) -> SheetD
             else:
                 block = blocks[index]
                 blocks[index] = replace(block, first_line=block.first_line + running)
-    return _verified(replace(doc, blocks=tuple(blocks)))
+        return _verified(doc.with_blocks(tuple(blocks)))
+    # Nothing moved: only the changed cells are new, and the cell tables carry over.
+    return _verified(doc.with_blocks(tuple(blocks), cells_replaced=placed))
 
 
 def _block_at(doc: SheetDocument, index: int) -> Block:

@@ -8,7 +8,9 @@ opaque text.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
+from bisect import bisect_left
+from collections.abc import Mapping
+from dataclasses import dataclass, replace
 from functools import cached_property
 
 _LINE_END = re.compile(r"(\r\n|\n|\r)")
@@ -173,6 +175,28 @@ class SheetDocument:
     @cached_property
     def _calc_cell_indices(self) -> tuple[int, ...]:
         return tuple(k for k, block in enumerate(self.blocks) if isinstance(block, CalcCell))
+
+    def with_blocks(
+        self, blocks: tuple[Block, ...], cells_replaced: Mapping[int, CalcCell] | None = None
+    ) -> SheetDocument:
+        """This document holding ``blocks``.
+
+        ``cells_replaced`` says that ``blocks`` are this document's blocks with only the calc
+        cells at those block indices replaced: the new document then takes its cell tables
+        from this one instead of walking every block again (an edit of a long sheet).
+        """
+        new = replace(self, blocks=blocks)
+        if cells_replaced is None:
+            return new
+        indices = self._calc_cell_indices
+        cells = list(self._calc_cells)
+        for index, cell in cells_replaced.items():
+            cells[bisect_left(indices, index)] = cell
+        # cached_property keeps its values in the instance dictionary, which a frozen
+        # dataclass leaves writable.
+        new.__dict__["_calc_cell_indices"] = indices
+        new.__dict__["_calc_cells"] = tuple(cells)
+        return new
 
     def get(self, key: str, default: str | None = None) -> str | None:
         """A front-matter value, or ``default`` when the key or the front matter is missing."""

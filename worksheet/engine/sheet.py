@@ -159,6 +159,7 @@ class SheetEvaluator:
     def __init__(self, context: Context):
         self.ctx = context
         self._slots: list[_Slot] = []
+        self.runs = 0  # how many times run() was called: lets a caller tell it is in step
         self._sources: list[SourceStatement] = []  # slot sources, for a C-speed comparison
         self._results: list[StatementResult] = []  # one per slot after a run
         self.rerun: list[int] | None = None
@@ -214,13 +215,23 @@ class SheetEvaluator:
             return True
         return slot.defines not in self.ctx.constants and slot.defines not in RESERVED_NAMES
 
-    def run(self, statements: Sequence[SourceStatement]) -> list[StatementResult]:
-        """Evaluate all statements (reusing what is unchanged) and return their results."""
-        fast = self._run_changed_only(statements)
-        if fast is not None:
-            return fast
-        self.rerun = None
+    def run(
+        self,
+        statements: Sequence[SourceStatement],
+        replaced: Sequence[int] | None = None,
+    ) -> list[StatementResult]:
+        """Evaluate all statements (reusing what is unchanged) and return their results.
+
+        ``replaced``, when the caller knows it, lists the positions (ascending) of the only
+        statements that are not the very objects of the last run; the others are then not
+        compared one by one (an edit of a long sheet).
+        """
+        self.runs += 1
         with _collector_paused():
+            fast = self._run_changed_only(statements, replaced)
+            if fast is not None:
+                return fast
+            self.rerun = None
             return self._run_all(statements)
 
     def _run_all(self, statements: Sequence[SourceStatement]) -> list[StatementResult]:
@@ -291,7 +302,9 @@ class SheetEvaluator:
         self._results = [slot.result for slot in slots if slot.result is not None]
         return list(self._results)
 
-    def _run_changed_only(self, statements: Sequence[SourceStatement]) -> list | None:
+    def _run_changed_only(
+        self, statements: Sequence[SourceStatement], replaced: Sequence[int] | None = None
+    ) -> list | None:
         """Edits that keep every line and every defined name: re-run only the dependents.
 
         Returns None when the fast path does not apply (lines moved, names changed).
@@ -305,9 +318,14 @@ class SheetEvaluator:
         changed: list[int] = []
         # The runner hands unchanged cells' statements back as the same objects: only the
         # others are looked at (found by identity, at C speed).
-        others = list(
-            itertools.compress(range(len(slots)), map(operator.is_not, statements, self._sources))
-        )
+        if replaced is None:
+            others = list(
+                itertools.compress(
+                    range(len(slots)), map(operator.is_not, statements, self._sources)
+                )
+            )
+        else:
+            others = list(replaced)
         for index in others:
             source, slot = statements[index], slots[index]
             if source.line != slot.source.line or source.cell != slot.source.cell:
@@ -336,7 +354,9 @@ class SheetEvaluator:
             self._parse_cache = {
                 (slot.source.line, slot.source.text): self._parse(slot.source) for slot in slots
             }
-        self._sources = list(statements)
+        sources = self._sources
+        for index in others:  # the only places where ``statements`` differs from them
+            sources[index] = statements[index]
         users = state.users
         for index in changed:  # the reverse map may gain names the new text reads
             for name in slots[index].uses:
