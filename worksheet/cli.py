@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 import functools
+import gc
 import json
 import os
 import re
@@ -126,7 +127,15 @@ def _unknown_first_word(first: str) -> UsageError:
     )
 
 
-def main(argv: Sequence[str] | None = None) -> int:
+_APP_COMMANDS = ("open",)
+"""Commands that start the app, which lives on and collects cycles as usual."""
+
+
+def main(argv: Sequence[str] | None = None, one_shot: bool = False) -> int:
+    """The command line. ``one_shot``: this process ends when the command does (the
+    console command), so a command that runs sheets holds the cycle collector off
+    throughout (``engine/collector.py``), not only for each run: re-enabled, its first
+    collection would walk every object the run left, just before the exit."""
     args_list = list(sys.argv[1:] if argv is None else argv)
     try:
         if args_list and _implicit_open(args_list[0]):
@@ -137,6 +146,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         if args.command is None:
             build_parser().print_help()
             return 2
+        if one_shot and args.command not in _APP_COMMANDS:
+            gc.disable()
         handler = {
             "open": _open,
             "new": _new,
@@ -165,7 +176,7 @@ def entry() -> None:
     tools that work at exit, such as coverage); so does a thread still running.
     """
     try:
-        code = main()
+        code = main(one_shot=True)
     except SystemExit as stop:  # raised by argparse (--help, --version)
         code = _exit_status(stop.code)
     if os.environ.get("WORKSHEET_FULL_EXIT") or _threads_still_running():
@@ -227,16 +238,19 @@ def _run_document(
     lines_as_written: bool = False,
     worker=None,
 ):
+    from worksheet.engine.collector import collector_paused
     from worksheet.runner import SheetRunner
 
-    doc = _read(path_text)
-    runner = SheetRunner(path_text, budget=budget, dataset=dataset, worker=worker)
-    try:
-        return runner.run(doc, lines_as_written)
-    except WorksheetError as err:
-        raise UsageError(f"{path_text}: {err.located()}; nothing was written") from err
-    finally:
-        runner.close()
+    # A long sheet's parse, run and record, the collector held: see engine/collector.py.
+    with collector_paused():
+        doc = _read(path_text)
+        runner = SheetRunner(path_text, budget=budget, dataset=dataset, worker=worker)
+        try:
+            return runner.run(doc, lines_as_written)
+        except WorksheetError as err:
+            raise UsageError(f"{path_text}: {err.located()}; nothing was written") from err
+        finally:
+            runner.close()
 
 
 def _summary_lines(path_text: str, results) -> list[str]:

@@ -33,6 +33,7 @@ from worksheet.engine import (
     split_statements,
 )
 from worksheet.engine.budget import DEFAULT_SECONDS, Worker
+from worksheet.engine.collector import collector_paused
 from worksheet.engine.distributions import (
     DEFAULT_SAMPLES,
     DEFAULT_SEED,
@@ -351,6 +352,15 @@ class SheetRunner:
         and the app show), or with ``lines_as_written`` those of the file this run writes
         (what ``worksheet run`` and saving use). ``use`` paths resolve from ``path`` (or the
         runner's ``sheet_path``)."""
+        with collector_paused():
+            return self._run(doc, lines_as_written, path)
+
+    def _run(
+        self,
+        doc: SheetDocument,
+        lines_as_written: bool,
+        path: str | os.PathLike[str] | None,
+    ) -> SheetRun:
         settings = self.settings(doc)
         if not lines_as_written:
             after_edit = self._run_after_edit(doc, settings)

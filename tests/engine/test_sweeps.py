@@ -85,3 +85,32 @@ def test_dimension_errors_inside_verbs_name_both_sides(run_sheet) -> None:
     assert "cannot add dimension m*s" in results[3].message and "mass" in results[3].message
     assert results[4].status == "error"
     assert "length (L, m)" in results[4].message and "time (t, s)" in results[4].message
+
+
+def test_issue12_a_table_follows_a_changed_given_of_its_folded_coefficient(run_sheet) -> None:
+    # The folded coefficient's number is kept per set of values it reads: a second sheet
+    # with another value of a name in it (a) must not be given the first one's number.
+    def body(a: str) -> str:
+        return f"a = {a} [m]\nx = 1 [s]\ny = a*x^2\ntable x = 1 [s] .. 3 [s] lin 3: y in [m*s^2]\n"
+
+    def column(a: str) -> list[float]:
+        rows = run_sheet(body(a))[3].record.split("\n")[2:]
+        return [float(row.split()[1]) for row in rows]
+
+    assert column("2") == [2.0, 8.0, 18.0]
+    assert column("5") == [5.0, 20.0, 45.0]  # y = a*x^2 with a = 5 m
+    assert column("2") == [2.0, 8.0, 18.0]
+
+
+def test_issue12_the_folded_coefficient_keeps_plus_and_minus_zero_apart() -> None:
+    # 0.0 and -0.0 are equal keys but scale a sweep to +0 and -0: never shared.
+    import sympy
+
+    from worksheet.engine.numeric import evaluate_on_array
+
+    a, x = sympy.symbols("a x")
+    inputs = np.array([1.0, 2.0])
+    plus = evaluate_on_array(a * x, x, inputs, {a: 0.0})
+    minus = evaluate_on_array(a * x, x, inputs, {a: -0.0})
+    assert [math.copysign(1.0, v) for v in plus] == [1.0, 1.0]
+    assert [math.copysign(1.0, v) for v in minus] == [-1.0, -1.0]

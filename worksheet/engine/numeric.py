@@ -9,6 +9,7 @@ from __future__ import annotations
 import functools
 import math
 from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
 
 import sympy
@@ -416,7 +417,54 @@ class DualBackend(Backend):
 DUAL = DualBackend()
 
 
-_SPLIT: dict[tuple[sympy.Expr, sympy.Symbol], tuple[sympy.Expr, sympy.Expr]] = {}
+@dataclass(frozen=True, slots=True)
+class _SweepPlan:
+    """How one form is swept over one symbol: the part independent of the symbol (folded
+    to one number), what remains, and, for a pure power of the symbol, its exponent."""
+
+    coefficient: sympy.Expr
+    rest: sympy.Expr
+    reads: tuple[sympy.Symbol, ...]  # the symbols the coefficient's number depends on
+    power: int  # +-1..8 for rest == symbol**power, else 0
+
+
+_PLANS: dict[tuple[sympy.Expr, sympy.Symbol], _SweepPlan] = {}
+_SCALES: dict[tuple[sympy.Expr, tuple[float, ...]], Any] = {}
+"""The coefficient's number by the values it read: a sweep redrawn with the same givens
+(every frame of a slider, every column of a table) does not walk it again."""
+
+
+def _plan(expr: sympy.Expr, symbol: sympy.Symbol) -> _SweepPlan:
+    plan = _PLANS.get((expr, symbol))
+    if plan is None:  # the form's structure does not change with the values: kept
+        if len(_PLANS) >= 1024:
+            _PLANS.clear()
+        coefficient, rest = expr.as_independent(symbol, as_Add=False)
+        base, exponent = rest.as_base_exp()
+        power = 0
+        if base == symbol and exponent.is_Integer and 0 < abs(int(exponent)) <= 8:
+            power = int(exponent)
+        reads = tuple(sorted(coefficient.free_symbols, key=sympy.default_sort_key))
+        plan = _PLANS[(expr, symbol)] = _SweepPlan(coefficient, rest, reads, power)
+    return plan
+
+
+def _scale(plan: _SweepPlan, values: Mapping[sympy.Symbol, Any]) -> Any:
+    try:
+        read = tuple(values[symbol] for symbol in plan.reads)
+    except KeyError:
+        return evaluate(plan.coefficient, values)  # which words the missing value
+    # Kept only for plain non-zero doubles: 0.0 and -0.0 are equal keys with other results.
+    if not all(type(value) is float and value for value in read):
+        return evaluate(plan.coefficient, values)
+    key = (plan.coefficient, read)
+    found = _SCALES.get(key)
+    if found is None:
+        found = evaluate(plan.coefficient, values)
+        if len(_SCALES) >= 1024:
+            _SCALES.clear()
+        _SCALES[key] = found
+    return found
 
 
 def evaluate_on_array(
@@ -424,32 +472,27 @@ def evaluate_on_array(
 ) -> Any:
     """``expr`` for every element of ``array`` standing for ``symbol``.
 
-    A small compile step first: the factor independent of ``symbol`` is folded to one
-    number, and a pure power of the symbol is done in place, so a power-law sweep costs
-    what hand-written numpy with folded constants costs.
+    A small compile step first, kept per form: the factor independent of ``symbol`` is
+    folded to one number (kept per set of values it reads), and a pure power of the symbol
+    is done in place, so a power-law sweep costs what hand-written numpy with folded
+    constants costs.
     """
     np = numpy_backend().np
-    split = _SPLIT.get((expr, symbol))
-    if split is None:  # the form's structure does not change with the values: kept
-        if len(_SPLIT) >= 1024:
-            _SPLIT.clear()
-        split = _SPLIT[(expr, symbol)] = expr.as_independent(symbol, as_Add=False)
-    coefficient, rest = split
-    scale = evaluate(coefficient, values)
-    base, power = rest.as_base_exp()
-    if base == symbol and power.is_Integer and 0 < abs(int(power)) <= 8:
-        count = abs(int(power))
+    plan = _plan(expr, symbol)
+    scale = _scale(plan, values)
+    power = plan.power
+    if power:
         with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
             if power > 0:
                 out = array * scale
-                for _ in range(count - 1):
+                for _ in range(power - 1):
                     out *= array
             else:
                 out = scale / array
-                for _ in range(count - 1):
+                for _ in range(-power - 1):
                     out /= array
         return out
-    result = evaluate(rest, _with(values, symbol, array), numpy_backend())
+    result = evaluate(plan.rest, _with(values, symbol, array), numpy_backend())
     with np.errstate(over="ignore", invalid="ignore"):
         return result * scale
 

@@ -2,19 +2,18 @@
 
 from __future__ import annotations
 
-import contextlib
-import gc
 import heapq
 import itertools
 import operator
 import re
-from collections.abc import Callable, Iterator, Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import sympy
 
 from worksheet.engine.bindings import Binding
 from worksheet.engine.budget import statement_timer
+from worksheet.engine.collector import collector_paused
 from worksheet.engine.context import Context
 from worksheet.engine.import_scope import ImportScope
 from worksheet.engine.results import StatementResult
@@ -130,24 +129,6 @@ class _Slot:
     binding: Binding | None = None
 
 
-@contextlib.contextmanager
-def _collector_paused() -> Iterator[None]:
-    """No cyclic garbage collection while a whole sheet runs.
-
-    Each statement leaves long-lived results, bindings and sympy objects behind, and every
-    full collection would scan all of them again: on a long sheet that grows with the
-    square of its length. The statements make little cyclic garbage, so the collector
-    waits until the run is over (and is left as it was found).
-    """
-    was_enabled = gc.isenabled()
-    gc.disable()
-    try:
-        yield
-    finally:
-        if was_enabled:
-            gc.enable()
-
-
 class SheetEvaluator:
     """Evaluates a list of statements; re-evaluates only what a change can affect.
 
@@ -227,7 +208,7 @@ class SheetEvaluator:
         compared one by one (an edit of a long sheet).
         """
         self.runs += 1
-        with _collector_paused():
+        with collector_paused():
             fast = self._run_changed_only(statements, replaced)
             if fast is not None:
                 return fast
