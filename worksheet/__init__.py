@@ -5,7 +5,7 @@ from __future__ import annotations
 import os
 from typing import TYPE_CHECKING, Any
 
-__version__ = "0.3.1"
+__version__ = "0.3.2"
 
 CAUTION = (
     "Results are estimates for research planning; verify them independently before any use "
