@@ -382,6 +382,7 @@ LINE_BREAKS = "\n\r\x0b\x0c\x1c\x1d\x1e\x85\u2028\u2029"  # what str.splitlines 
 @given(path=st.text(st.characters(exclude_characters=LINE_BREAKS), max_size=40))
 @example(path="\ud800")  # a lone surrogate: possible in Python text, not in a file
 @example(path="a\x00b")
+@example(path='"(')  # found by hypothesis: 'use "\\"("' once swallowed the next line
 def test_issue14_any_use_path_ends_as_a_recorded_line(tmp_path: Path, path: str):
     main_sheet = tmp_path / "main.sheet.md"
     body = "use " + json.dumps(path, ensure_ascii=False) + "\nx = 1 [m]"

@@ -22,6 +22,7 @@ from worksheet.errors import EvaluationError, NameResolutionError, WorksheetErro
 from worksheet.syntax import parse_statement
 from worksheet.syntax import tree as t
 from worksheet.syntax.names import referenced_names
+from worksheet.syntax.use import looks_like_use
 
 
 @dataclass(frozen=True)
@@ -51,6 +52,11 @@ def split_statements(body: str, first_line: int, cell: int = 0) -> list[SourceSt
     for offset, raw in enumerate(lines):
         if not pending:
             start = first_line + offset
+            if looks_like_use(raw):
+                # A use statement is one line (its parser refuses more), whatever its
+                # quotes hold: 'use "\\"("' has a '(' after the path's closing quote.
+                statements.append(SourceStatement(start, raw, cell))
+                continue
         pending.append(raw)
         depth += _paren_balance(raw)
         if depth <= 0:
