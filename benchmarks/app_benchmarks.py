@@ -10,7 +10,9 @@ Run: python benchmarks/app_benchmarks.py
    ``import textual.app`` (and, for reference, sympy + numpy + pint + textual), the three
    processes started in turn and the medians compared. Target: at most 1.5 x the floor.
    The package's bytecode is written first, as an install writes it (textual, the floor,
-   is installed with its own).
+   is installed with its own). Where valgrind is installed, the floor and the launch are
+   also counted in instructions (callgrind), a figure no load elsewhere moves: printed
+   beneath the timed ratio as a cross-check of it.
 2. Typing on a generated 300-statement sheet in textual's test harness, each key handed
    to the app as a terminal hands it (at once, not after the pilot's wait for an idle
    process, which until 0.3.2 was counted in the latency): the longest time the event
@@ -22,6 +24,9 @@ Run: python benchmarks/app_benchmarks.py
 from __future__ import annotations
 
 import asyncio
+import os
+import re
+import shutil
 import statistics
 import subprocess
 import sys
@@ -81,6 +86,24 @@ def launch_medians(commands: dict[str, list[str]], rounds: int = 7) -> dict[str,
         for name in names[shift:] + names[:shift]:
             samples[name].append(until_ready(commands[name]))
     return {name: statistics.median(times) for name, times in samples.items()}
+
+
+def instructions(command: list[str]) -> int | None:
+    """Instructions the process runs to its end, counted by valgrind's callgrind (None
+    without valgrind). The same count on every run, whatever else the machine does."""
+    if shutil.which("valgrind") is None:
+        return None
+    done = subprocess.run(
+        ["valgrind", "--tool=callgrind", "--callgrind-out-file=/dev/null", *command],
+        capture_output=True,
+        text=True,
+        cwd=ROOT,
+        env={**os.environ, "PYTHONHASHSEED": "0"},
+    )
+    found = re.search(r"Collected : (\d+)", done.stderr)
+    if done.returncode != 0 or found is None:
+        raise SystemExit(f"callgrind failed on {command[:2]}: {done.stderr[-500:]}")
+    return int(found.group(1))
 
 
 def generated_sheet(statements: int = 300, per_cell: int = 10) -> str:
@@ -194,6 +217,19 @@ def main() -> None:
         f"launch to first full paint ({DEMO.name}): {launch * 1000:5.0f} ms = "
         f"{ratio:.2f} x import textual.app (target <= 1.5 x; {verdict(ratio, 1.5)})"
     )
+    # The same comparison in instructions (the launch's child ends at its first paint),
+    # free of the shared machine's noise; a cross-check of the ratio above, not the target.
+    launch_command = [python, "-c", LAUNCH.format(w=SIZE[0], h=SIZE[1]), str(DEMO)]
+    counted_floor = instructions([python, "-c", FLOOR_APP])
+    counted_launch = instructions(launch_command)
+    if counted_floor and counted_launch:
+        print(
+            f"  (in instructions, callgrind: {counted_launch / 1e6:.0f} M = "
+            f"{counted_launch / counted_floor:.2f} x import textual.app's "
+            f"{counted_floor / 1e6:.0f} M)"
+        )
+    else:
+        print("  (valgrind not found: no instruction counts)")
     with tempfile.TemporaryDirectory() as folder:
         path = Path(folder) / "long.sheet.md"
         path.write_text(generated_sheet(), encoding="utf-8")

@@ -47,6 +47,7 @@ from worksheet.app.widgets.key_hints import KeyHints
 from worksheet.app.widgets.ledger import QuantityLedger
 from worksheet.app.widgets.links import QuantityLinks
 from worksheet.app.widgets.note_cell import NoteCellView
+from worksheet.app.widgets.panel_stand_in import LINKS_HINT, PanelStandIn
 from worksheet.app.widgets.result_lines import STATUS_WORDS, result_text
 from worksheet.app.widgets.sheet_view import SheetView
 from worksheet.app.widgets.status_line import StatusLine
@@ -119,6 +120,7 @@ class WorksheetApp(App[int]):
         self._last_recovery: str | None = None
         self._closed = False
         self._notes_rendered = False  # notes show their source text until after first paint
+        self._panels_live = False  # the side lists are stand-ins until after first paint
         self._open_error: WorksheetError | None = None
         self._notice = ""  # the last cell operation, kept in the status line
         # Where the sheet's focus was when the panel key moved it to the side panel.
@@ -152,9 +154,10 @@ class WorksheetApp(App[int]):
             )
             with Vertical(id="side"):
                 yield Static(Text("Quantities"), classes="panel-title")
-                yield QuantityLedger(id="ledger")
+                # Plain text in the lists' places until right after the first paint.
+                yield PanelStandIn("ledger")
                 yield Static(Text("Links of the chosen quantity"), classes="panel-title")
-                yield QuantityLinks(id="links")
+                yield PanelStandIn("links", LINKS_HINT)
         yield Static(id="at-cursor")
         yield StatusLine(id="status")
         yield KeyHints()
@@ -177,7 +180,6 @@ class WorksheetApp(App[int]):
             where = err.located() if err is not None else "not read"
             self.exit(2, message=f"cannot open {self.sheet_path.name}: {where}")
             return
-        self.query_one(QuantityLinks).show(None)
         # Paint the sheet with the results its file records first, then compute: the run
         # would otherwise compete with the first paint for the interpreter.
         self._place_focus(self._first_focus())
@@ -212,9 +214,22 @@ class WorksheetApp(App[int]):
         self.start_run()
         await self.sheet.mount_rest()
         await self.sheet.go_live()
+        await self._swap_in_panels()
         await self._release_next_key()
         await self.sheet.render_notes()
         self._notes_rendered = True
+
+    async def _swap_in_panels(self) -> None:
+        """The side panels' lists in place of their first-paint stand-ins."""
+        side = self.query_one("#side")
+        places = {stand_in.place: stand_in for stand_in in side.query(PanelStandIn)}
+        ledger, links = QuantityLedger(id="ledger"), QuantityLinks(id="links")
+        with self.batch_update():
+            for widget, place in ((ledger, "ledger"), (links, "links")):
+                await side.mount(widget, before=places[place])
+                await places[place].remove()
+        links.show(None)
+        self._panels_live = True
 
     # ----- keys typed before the editors are in
 
@@ -255,6 +270,16 @@ class WorksheetApp(App[int]):
         # ignored.
         if number == self._released and self._held is not None:
             await self._release_next_key()
+
+    def refresh_css(self, animate: bool = True) -> None:
+        if not self._screen_stack:
+            # The theme set in __init__ asks for this before any screen exists: nothing is
+            # styled yet, so the theme's variables are all it needs. textual would parse
+            # the whole stylesheet now in a scratch copy and throw that parse away, and
+            # the first styling pass would parse it again.
+            self.stylesheet.set_variables(self.get_css_variables())
+            return
+        super().refresh_css(animate)
 
     def _install_themes(self) -> None:
         loaded = load_themes()
@@ -421,7 +446,8 @@ class WorksheetApp(App[int]):
         """Show one run's results, unless a newer run has started since."""
         if generation != self._generation or self.session is None:
             return
-        if not self.sheet.complete:  # a quick first run, before the sheet's lower cells
+        if not (self.sheet.complete and self._panels_live):  # a quick first run, before
+            # the sheet's lower cells or the side lists are in
             self.set_timer(0.02, partial(self.apply_outcome, outcome, generation))
             return
         first = self.outcome is None

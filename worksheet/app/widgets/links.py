@@ -9,6 +9,7 @@ from textual.widgets import OptionList
 from textual.widgets.option_list import Option
 
 from worksheet.app.quantity_row import QuantityRow
+from worksheet.app.widgets.panel_stand_in import LINKS_HINT
 
 
 class QuantityLinks(OptionList):
@@ -30,7 +31,7 @@ class QuantityLinks(OptionList):
         self._shown = row
         self.clear_options()
         if row is None:
-            self.add_option(Option(Text("choose a quantity above"), disabled=True))
+            self.add_option(Option(Text(LINKS_HINT), disabled=True))
             return
         options: list[Option] = [
             Option(

@@ -109,6 +109,14 @@ class SheetView(VerticalScroll):
                 else first_screenful(views, self._rows, self._through)
             )
             self._later = views[count:]
+            if self._rows is not None and (
+                self._later or sum(least_rows(view) for view in views[:count]) > self._rows
+            ):
+                # Cells are left for later only once the screen is full, and more rows
+                # than the screen has surely overflow: either way the sheet scrolls, so
+                # its first layout places the scroll bar, where textual would find out in
+                # that pass and lay the whole screen out again for it.
+                self.set_reactive(Widget.show_vertical_scrollbar, True)
             yield from views[:count]
             self._initial = None
 
