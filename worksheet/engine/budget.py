@@ -30,6 +30,11 @@ from typing import Any
 
 from worksheet.errors import BudgetError, EvaluationError, WorksheetError
 
+try:  # imported here, not in a new worker: a first import there costs a millisecond or so
+    import resource
+except ImportError:  # not on this platform (Windows): no memory cap
+    resource = None  # type: ignore[assignment]
+
 DEFAULT_SECONDS = 5.0
 
 DEFAULT_MEMORY_BYTES = 1 << 30
@@ -83,7 +88,8 @@ def _die_with_parent(parent_pid: int, use_death_signal: bool) -> None:
 
     On Linux the kernel sends SIGKILL at once (``PR_SET_PDEATHSIG``); it fires when the
     *thread* that started the worker ends, so it is asked for only when that thread is the
-    main one. Everywhere, a watchdog thread also checks the parent id twice a second.
+    main one. Everywhere, a watchdog thread (``_watch_parent``) also checks the parent id
+    twice a second.
     """
     if use_death_signal and sys.platform.startswith("linux"):
         with contextlib.suppress(OSError, AttributeError, TypeError):
@@ -96,6 +102,11 @@ def _die_with_parent(parent_pid: int, use_death_signal: bool) -> None:
     if os.getppid() != parent_pid:
         os._exit(0)  # the parent ended before the signal was asked for
 
+
+def _watch_parent(parent_pid: int) -> None:
+    """Start the watchdog thread of ``_die_with_parent`` (after the worker's 'ready', which
+    waits for nothing it does)."""
+
     def watch() -> None:
         while True:
             time.sleep(PARENT_POLL_SECONDS)
@@ -107,9 +118,13 @@ def _die_with_parent(parent_pid: int, use_death_signal: bool) -> None:
 
 def _address_space_bytes() -> int | None:
     """This process's current address-space size, where the platform tells it."""
+    # os-level calls: the first text-mode open() in a new worker costs about a millisecond.
     try:
-        with open("/proc/self/statm", encoding="ascii") as handle:
-            pages = int(handle.read().split()[0])
+        handle = os.open("/proc/self/statm", os.O_RDONLY)
+        try:
+            pages = int(os.read(handle, 256).split()[0])
+        finally:
+            os.close(handle)
         return pages * os.sysconf("SC_PAGE_SIZE")
     except (OSError, ValueError, IndexError):
         return None
@@ -117,11 +132,7 @@ def _address_space_bytes() -> int | None:
 
 def _cap_memory(extra_bytes: int | None) -> int | None:
     """Limit the address space to its present size plus ``extra_bytes``; the limit set."""
-    if extra_bytes is None:
-        return None
-    try:
-        import resource
-    except ImportError:  # not on this platform
+    if extra_bytes is None or resource is None:
         return None
     present = _address_space_bytes()
     if present is None:
@@ -184,6 +195,7 @@ def _serve(
             warm_up()
     limit = _cap_memory(memory_bytes)
     connection.send((0, "ready", limit))
+    _watch_parent(parent_pid)
     while True:
         try:
             request = connection.recv()
