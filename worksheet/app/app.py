@@ -28,7 +28,7 @@ from textual.worker import get_current_worker
 
 from worksheet.app.keys import KEY_ACTIONS, app_bindings
 from worksheet.app.lazy_service import LazyRunService
-from worksheet.app.pauses import CollectorHold, settle_long_lived
+from worksheet.app.pauses import CollectorHold, QuietCollector, settle_long_lived
 from worksheet.app.recovery import newer_recovery, remove_recovery, write_recovery
 from worksheet.app.screens.choice import ChoiceScreen
 from worksheet.app.screens.sheet import SheetScreen
@@ -117,6 +117,9 @@ class WorksheetApp(App[int]):
         )
         self._generation = 0
         self._run_timer: Timer | None = None
+        # Full collections at the user's pauses, from the first run on (see pauses.py).
+        self._quiet_collector = QuietCollector()
+        self._quiet_timer: Timer | None = None
         self._last_recovery: str | None = None
         self._closed = False
         self._notes_rendered = False  # notes show their source text until after first paint
@@ -234,6 +237,8 @@ class WorksheetApp(App[int]):
     # ----- keys typed before the editors are in
 
     async def on_event(self, event: events.Event) -> None:
+        if isinstance(event, events.Key | events.Paste | events.MouseDown):
+            self._quiet_collector.note_input()
         # Until the calc cells have their editors (right after the first paint) the keys
         # typed wait here, in order; then they go on one at a time (see _release_next_key),
         # as textual would have handed them on, so none is lost or overtaken.
@@ -454,6 +459,8 @@ class WorksheetApp(App[int]):
         self.outcome = outcome
         if first:
             settle_long_lived()
+            self._quiet_collector.defer()
+        self._collect_at_a_pause()
         if outcome.run is None:
             for view in self.sheet.cells():
                 if isinstance(view, CalcCellView):
@@ -468,6 +475,18 @@ class WorksheetApp(App[int]):
         self._show_status()
         self._show_cursor_result()
         self._refresh_title()
+
+    def _collect_at_a_pause(self) -> None:
+        """A run ended: a full collection once no key comes for a moment (at once in a
+        burst of typing long enough to be overdue)."""
+        collector = self._quiet_collector
+        collector.note_run()
+        if not collector.collect_if_overdue() and self._quiet_timer is None:
+            self._quiet_timer = self.set_timer(collector.quiet_seconds, self._quiet_check)
+
+    def _quiet_check(self) -> None:
+        wait = self._quiet_collector.collect_if_quiet()
+        self._quiet_timer = None if wait is None else self.set_timer(wait, self._quiet_check)
 
     def _show_status(self) -> bool:
         """What the last run gave and whether the file holds it (False: no run to tell)."""
@@ -867,4 +886,5 @@ class WorksheetApp(App[int]):
 
     def on_unmount(self) -> None:
         self._collector.release()  # an app that never painted (a sheet it cannot open)
+        self._quiet_collector.restore()
         self.close_service()
