@@ -4,7 +4,6 @@ pauses, not between two keys; the process's collector thresholds are put back at
 from __future__ import annotations
 
 import gc
-from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
@@ -23,23 +22,7 @@ class FakeClock:
         return self.now
 
 
-@pytest.fixture
-def full_collections() -> Iterator[list[int]]:
-    """The generation of each collection Python starts while the test runs (gen 2 = full)."""
-    seen: list[int] = []
-
-    def callback(phase: str, info: dict[str, int]) -> None:
-        if phase == "start":
-            seen.append(info["generation"])
-
-    gc.callbacks.append(callback)
-    try:
-        yield seen
-    finally:
-        gc.callbacks.remove(callback)
-
-
-def test_issue12_deferring_stops_automatic_full_collections_and_restore_puts_them_back() -> None:
+def test_issue12_deferring_stops_automatic_collections_seen_and_restore_puts_them_back() -> None:
     before = gc.get_threshold()
     collector = QuietCollector()
     collector.defer()
@@ -67,7 +50,7 @@ def test_issue12_two_collectors_put_the_threshold_back_when_the_last_one_restore
 
 
 def test_issue12_full_collection_waits_for_a_quiet_moment_after_a_run(
-    full_collections: list[int],
+    collections_seen: list[int],
 ) -> None:
     clock = FakeClock()
     collector = QuietCollector(quiet_seconds=0.5, most_seconds=20.0, clock=clock)
@@ -79,10 +62,10 @@ def test_issue12_full_collection_waits_for_a_quiet_moment_after_a_run(
         collector.note_input()  # a key just now
         clock.now += 0.1
         assert collector.collect_if_quiet() == pytest.approx(0.4)
-        assert 2 not in full_collections and collector.collections == 0
+        assert 2 not in collections_seen and collector.collections == 0
         clock.now += 0.4
         assert collector.collect_if_quiet() is None
-        assert collector.collections == 1 and 2 in full_collections
+        assert collector.collections == 1 and 2 in collections_seen
         # Nothing ran since: no second collection however quiet it stays.
         clock.now += 5.0
         assert collector.collect_if_quiet() is None and collector.collections == 1
@@ -119,7 +102,7 @@ def test_issue12_not_deferring_the_collector_asks_for_nothing() -> None:
 
 
 def test_issue12_the_app_collects_in_full_only_at_a_pause_and_restores_the_threshold(
-    basic_sheet: Path, ui, full_collections: list[int]
+    basic_sheet: Path, ui, collections_seen: list[int]
 ) -> None:
     before = gc.get_threshold()
     app = WorksheetApp(str(basic_sheet))
@@ -130,7 +113,7 @@ def test_issue12_the_app_collects_in_full_only_at_a_pause_and_restores_the_thres
         collector = app._quiet_collector
         assert collector.deferring and gc.get_threshold()[2] == pauses._NO_AUTOMATIC_FULL
         await pilot.pause(collector.quiet_seconds + 0.3)  # the first run's own pause
-        full_collections.clear()
+        collections_seen.clear()
         made_before = collector.collections
         # Longer than a key's run takes even on a slow machine: the keys below come
         # faster than this (each waits only for its run).
@@ -146,12 +129,12 @@ def test_issue12_the_app_collects_in_full_only_at_a_pause_and_restores_the_thres
         await pilot.pause(0.1)
         await ui.settle(pilot, app)
         assert collector._pending  # the runs of these edits wait for their pause
-        seen_while_typing.extend(full_collections)
+        seen_while_typing.extend(collections_seen)
         assert collector.collections == made_before
         await pilot.pause(collector.quiet_seconds + 0.5)
         assert collector.collections == made_before + 1
         # Every full collection since the keys is the app's own, made at the pause.
-        assert full_collections.count(2) == 1
+        assert collections_seen.count(2) == 1
 
     ui.drive(app, scenario)
     assert 2 not in seen_while_typing

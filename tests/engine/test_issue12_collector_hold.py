@@ -6,8 +6,6 @@ import gc
 import os
 import subprocess
 import sys
-from collections.abc import Iterator
-from contextlib import contextmanager
 from pathlib import Path
 
 from worksheet import cli
@@ -24,31 +22,19 @@ def _long_sheet(cells: int) -> str:
     return "\n".join(parts)
 
 
-@contextmanager
-def _collections() -> Iterator[list[int]]:
-    seen: list[int] = []
-
-    def count(phase: str, info: dict) -> None:
-        if phase == "start":
-            seen.append(info["generation"])
-
-    gc.callbacks.append(count)
-    try:
-        yield seen
-    finally:
-        gc.callbacks.remove(count)
-
-
-def test_issue12_a_whole_run_of_a_long_sheet_makes_no_collection() -> None:
+def test_issue12_a_whole_run_of_a_long_sheet_makes_no_collection(
+    collections_seen: list[int],
+) -> None:
     # Each full collection walks every result made so far: held off, a long run has none,
     # and the collector is on again afterwards, as it was found.
     doc = parse_document(_long_sheet(300))  # 1,800 statements
     runner = SheetRunner()
     try:
         assert gc.isenabled()
-        with _collections() as seen:
-            run = runner.run(doc)
-            during = len(seen)
+        collections_seen.clear()
+        run = runner.run(doc)
+        seen = list(collections_seen)
+        during = len(seen)
         # Without the hold this run made some 150 collections, one of them full; with it,
         # at most the one young collection made when the collector comes back on.
         assert during <= 1 and 2 not in seen, seen
