@@ -64,13 +64,16 @@ class SheetScreen(Screen[None]):
     _first_drawn_at = float("-inf")
 
     def _refresh_layout(self, size: Size | None = None, scroll: bool = False) -> None:
+        if not self.eager_layout:  # after the first paint: textual's own, nothing more
+            super()._refresh_layout(size, scroll)
+            return
         full = bool(self.outer_size if size is None else size) and not (
             scroll and not self._layout_widgets
         )
         first = full and not self._compositor.widgets  # nothing laid out yet: all is new
         started = get_time()
         super()._refresh_layout(size, scroll)
-        if full and self.eager_layout:
+        if full:
             self._laid_out_at = started
             if first:
                 self._first_drawn_at = started

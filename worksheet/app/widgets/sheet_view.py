@@ -45,15 +45,15 @@ def least_rows(view: CellView) -> int:
     return header + frame + view.initial_text.count("\n") + 1 + view.recorded_count + margin
 
 
-def first_screenful(views: list[CellView], rows: int, through: int) -> int:
+def first_screenful(views: list[CellView], rows: int, through: int) -> tuple[int, int]:
     """How many of ``views`` the first paint needs: enough to fill ``rows`` for certain,
-    and the one at index ``through`` (it gets the focus)."""
+    and the one at index ``through`` (it gets the focus); and the fewest rows they take."""
     filled = 0
     for count, view in enumerate(views, start=1):
         filled += least_rows(view)
         if filled >= rows and count > through:
-            return count
-    return len(views)
+            return count, filled
+    return len(views), filled
 
 
 class SheetView(VerticalScroll):
@@ -103,15 +103,13 @@ class SheetView(VerticalScroll):
         if self._initial is not None:
             self.add_class("-first-paint")
             views = cell_views(self._initial, first_paint=True)
-            count = (
-                len(views)
+            count, filled = (
+                (len(views), 0)
                 if self._rows is None
                 else first_screenful(views, self._rows, self._through)
             )
             self._later = views[count:]
-            if self._rows is not None and (
-                self._later or sum(least_rows(view) for view in views[:count]) > self._rows
-            ):
+            if self._rows is not None and (self._later or filled > self._rows):
                 # Cells are left for later only once the screen is full, and more rows
                 # than the screen has surely overflow: either way the sheet scrolls, so
                 # its first layout places the scroll bar, where textual would find out in
